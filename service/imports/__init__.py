@@ -1,0 +1,1 @@
+"""Importers that turn drawings into section models."""

@@ -1,0 +1,1 @@
+"""Pictures and printable reports of evaluations."""
