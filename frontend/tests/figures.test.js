@@ -1,0 +1,49 @@
+import { test } from "node:test";
+import assert from "node:assert/strict";
+import { csvField, keyFigureRows, toCsv, uTimesL } from "../js/lib/figures.js";
+
+// The example response of the public contract (model-v1.md, "Response 200").
+const RESULT = {
+  id: "abc",
+  heat_flows: { inside: 9.49, outside: -9.49 },
+  L2D: 0.4745,
+  psi: { value: 0.061, L2D: 0.4745, sum_UL: 0.4135,
+    flanking: [{ id: "wall", u_value: 0.28, length: 1.2 }] },
+  probes: { P1: 19.2 },
+  surfaces: { inside: { min_temperature: 16.77, at: [0, 0] } },
+  condensation: { fRsi: 0.81, min_temperature: 16.2, at: [0, 0], fRsi_critical: 0.72,
+    verdict: "pass" },
+  mesh: { nodes: 12000, elements: 23500, relative_change: 0.0004, converged: true },
+  warnings: [],
+};
+
+test("key figures carry ψ, each U·l term, fRsi and the verdict", () => {
+  const rows = keyFigureRows(RESULT);
+  const get = (q) => rows.find((r) => r[0] === q);
+  assert.deepEqual(get("psi"), ["psi", 0.061, "W/(m·K)"]);
+  assert.deepEqual(get("flanking wall U·l"), ["flanking wall U·l", 0.336, "W/(m·K)"]);
+  assert.deepEqual(get("fRsi"), ["fRsi", 0.81, ""]);
+  assert.deepEqual(get("verdict"), ["verdict", "pass", ""]);
+  assert.deepEqual(get("heat flow outside"), ["heat flow outside", -9.49, "W/m"]);
+  assert.deepEqual(get("probe P1"), ["probe P1", 19.2, "°C"]);
+  assert.deepEqual(get("warnings"), ["warnings", 0, ""]);
+});
+
+test("missing blocks are left out, not written as empty", () => {
+  const rows = keyFigureRows({ id: "x", heat_flows: { a: 1, b: -1 } });
+  assert.deepEqual(rows.map((r) => r[0]), ["evaluation id", "heat flow a", "heat flow b",
+    "warnings"]);
+});
+
+test("U·l has no binary noise", () => {
+  assert.equal(uTimesL({ u_value: 0.1, length: 3 }), 0.3);
+});
+
+test("CSV quoting follows RFC 4180", () => {
+  assert.equal(csvField("plain"), "plain");
+  assert.equal(csvField("a,b"), '"a,b"');
+  assert.equal(csvField('say "hi"'), '"say ""hi"""');
+  assert.equal(csvField("two\nlines"), '"two\nlines"');
+  assert.equal(csvField(undefined), "");
+  assert.equal(toCsv([["psi", 0.061, "W/(m·K)"]]), "quantity,value,unit\r\npsi,0.061,W/(m·K)\r\n");
+});
