@@ -1,0 +1,47 @@
+"""Quadratic (P2) triangles: space, conduction stiffness and boundary-edge weights."""
+
+from __future__ import annotations
+
+import numpy as np
+
+from coldseam.fem.mesh import Mesh, edge_lookup, unique_edges
+from coldseam.fem.space import Space, barycentric_gradients
+
+#: ∫ φi φj ds / ℓ and ∫ φi ds / ℓ on an edge for dofs (end a, end b, midpoint).
+EDGE_MASS = np.array([[4.0, -1.0, 2.0], [-1.0, 4.0, 2.0], [2.0, 2.0, 16.0]]) / 30.0
+EDGE_LOAD = np.array([1.0, 1.0, 4.0]) / 6.0
+
+#: Edge-midpoint quadrature (exact for degree 2): barycentric coordinates, weight 1/3 each.
+_QUAD = np.array([[0.5, 0.5, 0.0], [0.0, 0.5, 0.5], [0.5, 0.0, 0.5]])
+_SIDES = [(0, 1), (1, 2), (2, 0)]
+
+
+def space(mesh: Mesh) -> Space:
+    edges, tri_edges = unique_edges(mesh.triangles)
+    n = mesh.nodes
+    midpoints = 0.5 * (mesh.points[edges[:, 0]] + mesh.points[edges[:, 1]])
+    cell_dofs = np.hstack([mesh.triangles, tri_edges + n])
+    bmid = edge_lookup(edges, mesh.boundary_edges) + n
+    edge_dofs = np.column_stack([mesh.boundary_edges, bmid])
+    return Space(mesh, 2, np.vstack([mesh.points, midpoints]), cell_dofs, edge_dofs)
+
+
+def basis_gradients(grad_lambda: np.ndarray, lam: np.ndarray) -> np.ndarray:
+    """Gradients (E, 6, 2) of the six P2 basis functions at barycentric point ``lam``."""
+    g = grad_lambda
+    out = np.empty((g.shape[0], 6, 2))
+    for i in range(3):
+        out[:, i] = (4.0 * lam[i] - 1.0) * g[:, i]
+    for s, (i, j) in enumerate(_SIDES):
+        out[:, 3 + s] = 4.0 * (lam[j] * g[:, i] + lam[i] * g[:, j])
+    return out
+
+
+def local_stiffness(space: Space, conductivity: np.ndarray) -> np.ndarray:
+    """Element conduction matrices (E, 6, 6) in W/K for λ = (E, 2) [λx, λy] in W/(m·K)."""
+    grad_lambda, area = barycentric_gradients(space.mesh)
+    local = np.zeros((len(area), 6, 6))
+    for lam in _QUAD:
+        g = basis_gradients(grad_lambda, lam)
+        local += np.einsum("eid,ejd->eij", g * conductivity[:, None, :], g)
+    return local * (area / 3.0)[:, None, None]

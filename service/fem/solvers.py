@@ -1,0 +1,62 @@
+"""Linear solvers for the symmetric positive definite conduction systems.
+
+Direct: SuperLU with the minimum-degree ordering on AᵀA+... (``MMD_AT_PLUS_A``), no pivoting
+and symmetric mode — measured fastest for P1 and P2 systems of this kind. Above
+``DIRECT_LIMIT`` unknowns: conjugate gradients preconditioned by smoothed-aggregation AMG
+(pyamg), with the residual checked after every solve: an unconverged solve is an error.
+"""
+
+from __future__ import annotations
+
+import logging
+
+import numpy as np
+import scipy.sparse as sp
+import scipy.sparse.linalg as spla
+
+from coldseam.errors import SolveFailed
+
+log = logging.getLogger(__name__)
+
+DIRECT_LIMIT = 300_000
+RELATIVE_TOLERANCE = 1e-11
+
+
+class DirectSolver:
+    def __init__(self, matrix: sp.csc_matrix) -> None:
+        self.lu = spla.splu(matrix, permc_spec="MMD_AT_PLUS_A", diag_pivot_thresh=0.0,
+                            options={"SymmetricMode": True})
+
+    def solve(self, rhs: np.ndarray) -> np.ndarray:
+        return self.lu.solve(rhs)
+
+
+class MultigridSolver:
+    """CG with a smoothed-aggregation AMG preconditioner (pyamg), residual-checked."""
+
+    def __init__(self, matrix: sp.csc_matrix) -> None:
+        import pyamg
+
+        self.matrix = matrix.tocsr()
+        self.hierarchy = pyamg.smoothed_aggregation_solver(self.matrix, symmetry="symmetric")
+
+    def solve(self, rhs: np.ndarray) -> np.ndarray:
+        norm = np.linalg.norm(rhs)
+        if norm == 0:
+            return np.zeros_like(rhs)
+        residuals: list[float] = []
+        x = self.hierarchy.solve(rhs, tol=RELATIVE_TOLERANCE, accel="cg", maxiter=400,
+                                 residuals=residuals)
+        relative = np.linalg.norm(rhs - self.matrix @ x) / norm
+        if not relative < 1e-8:
+            raise SolveFailed(
+                f"the iterative solver stopped at relative residual {relative:.1e} after "
+                f"{len(residuals)} iterations; the result would not be trustworthy")
+        log.debug("AMG-CG: %d iterations, relative residual %.1e", len(residuals), relative)
+        return x
+
+
+def factorize(matrix: sp.csc_matrix) -> DirectSolver | MultigridSolver:
+    if matrix.shape[0] <= DIRECT_LIMIT:
+        return DirectSolver(matrix)
+    return MultigridSolver(matrix)

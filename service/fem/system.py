@@ -1,0 +1,165 @@
+"""Steady conduction with Robin (surface-resistance) and known-temperature boundaries.
+
+Weak form: find θ with ∫ ∇v·Λ∇θ dA + ∫_R h θ v ds = ∫_R h θ∞ v ds for all v, θ = θ∞ on the
+known-temperature edges (surface resistance 0). One factorisation serves every right-hand side
+(new boundary temperatures, adjoint loads).
+"""
+
+from __future__ import annotations
+
+import logging
+from dataclasses import dataclass, field
+
+import numpy as np
+import scipy.sparse as sp
+
+from coldseam.fem import p1, p2
+from coldseam.fem.mesh import Mesh
+from coldseam.fem.solvers import factorize
+from coldseam.fem.space import Space, edge_lengths
+
+log = logging.getLogger(__name__)
+
+FAMILIES = {1: p1, 2: p2}
+
+
+def make_space(mesh: Mesh, order: int) -> Space:
+    return FAMILIES[order].space(mesh)
+
+
+def assemble(cell_dofs: np.ndarray, local: np.ndarray, size: int) -> sp.csr_matrix:
+    """Sum element matrices (E, k, k) into a (size, size) CSR matrix."""
+    k = cell_dofs.shape[1]
+    rows = np.repeat(cell_dofs, k, axis=1).ravel()
+    cols = np.tile(cell_dofs, (1, k)).ravel()
+    return sp.coo_matrix((local.ravel(), (rows, cols)), shape=(size, size)).tocsr()
+
+
+@dataclass
+class ConductionProblem:
+    """The discrete problem on one space with fixed conductivities and surface conductances.
+
+    conductivity: (E, 2) [λx, λy] per triangle, W/(m·K).
+    conductance: (B,) h = 1/Rs per boundary edge, W/(m²·K); ``np.inf`` for Rs = 0.
+    """
+
+    space: Space
+    conductivity: np.ndarray
+    conductance: np.ndarray
+    matrix: sp.csr_matrix = field(init=False)
+    fixed: np.ndarray = field(init=False)
+    _solver: object = field(init=False, default=None)
+
+    def __post_init__(self) -> None:
+        family = FAMILIES[self.space.order]
+        n = self.space.dofs
+        local = family.local_stiffness(self.space, self.conductivity)
+        stiffness = assemble(self.space.cell_dofs, local, n)
+        self.lengths = edge_lengths(self.space.mesh.points, self.space.mesh.boundary_edges)
+        robin = np.isfinite(self.conductance)
+        self.h = np.where(robin, self.conductance, 0.0)
+        weight = self.h * self.lengths
+        edge_mass = weight[:, None, None] * family.EDGE_MASS[None]
+        self.matrix = stiffness + assemble(self.space.edge_dofs, edge_mass, n)
+        self.robin = robin
+        self.fixed_owner = self._fixed_owner()
+        self.fixed = np.flatnonzero(self.fixed_owner >= 0)
+        self.free = np.flatnonzero(self.fixed_owner < 0)
+        self._family = family
+
+    def _fixed_owner(self) -> np.ndarray:
+        """For each dof, the last known-temperature edge it lies on, or -1."""
+        owner = np.full(self.space.dofs, -1)
+        edges = np.flatnonzero(~self.robin)
+        for column in range(self.space.edge_dofs.shape[1]):
+            owner[self.space.edge_dofs[edges, column]] = edges
+        return owner
+
+    @property
+    def solver(self):
+        if self._solver is None:
+            a_ff = self.matrix[self.free][:, self.free]
+            self._solver = factorize(a_ff.tocsc())
+        return self._solver
+
+    def load(self, ambient: np.ndarray) -> np.ndarray:
+        """Right-hand side ∫_R h θ∞ φ ds for boundary temperatures ``ambient`` (B,) in °C."""
+        weight = self.h * ambient * self.lengths
+        rhs = np.zeros(self.space.dofs)
+        np.add.at(rhs, self.space.edge_dofs, weight[:, None] * self._family.EDGE_LOAD[None])
+        return rhs
+
+    def solve(self, ambient: np.ndarray) -> np.ndarray:
+        """Temperatures at every dof (°C) for boundary temperatures ``ambient`` (B,)."""
+        theta = np.zeros(self.space.dofs)
+        theta[self.fixed] = ambient[self.fixed_owner[self.fixed]]
+        rhs = self.load(ambient) - self.matrix @ theta
+        theta[self.free] = self.solver.solve(rhs[self.free])
+        return theta
+
+    def edge_means(self, theta: np.ndarray) -> np.ndarray:
+        """Mean temperature along each boundary edge (exact for the element's polynomial)."""
+        return theta[self.space.edge_dofs] @ (self._family.EDGE_LOAD)
+
+    def heat_flows(self, theta: np.ndarray, ambient: np.ndarray, groups: int) -> np.ndarray:
+        """Heat flow into the domain through each boundary group, W/m.
+
+        Robin edges: ∫ h (θ∞ − θ) ds, integrated exactly. Known-temperature edges: the
+        reaction (Aθ − b) at their dofs, which is the consistent boundary flux.
+        """
+        group = self.space.mesh.boundary_group
+        robin_flow = self.h * (ambient - self.edge_means(theta)) * self.lengths
+        flows = np.bincount(group, weights=robin_flow, minlength=groups)
+        if len(self.fixed):
+            residual = self.matrix @ theta - self.load(ambient)
+            owner_group = group[self.fixed_owner[self.fixed]]
+            flows += np.bincount(owner_group, weights=residual[self.fixed], minlength=groups)
+        return flows
+
+    def flow_functional(self, group_index: int) -> tuple[np.ndarray, np.ndarray]:
+        """Linear functional of the heat flow through one group: Φ = c·θ + d·θ∞ terms.
+
+        Returns (c, explicit) where c (D,) is ∂Φ/∂θ and ``explicit`` marks the fixed dofs whose
+        reaction enters Φ (their element matrices depend on λ explicitly).
+        """
+        group = self.space.mesh.boundary_group
+        c = np.zeros(self.space.dofs)
+        in_group = (group == group_index) & self.robin
+        weight = -(self.h * self.lengths)[in_group]
+        np.add.at(c, self.space.edge_dofs[in_group], weight[:, None] * self._family.EDGE_LOAD[None])
+        explicit = np.zeros(self.space.dofs)
+        owned = self.fixed[group[self.fixed_owner[self.fixed]] == group_index]
+        explicit[owned] = 1.0
+        c += self.matrix.T @ explicit
+        return c, explicit
+
+
+def log_conductivity_sensitivity(problem: ConductionProblem, theta: np.ndarray,
+                                 group_index: int, materials: int) -> np.ndarray:
+    """∂Φ/∂ln λₘ for the heat flow Φ through one group, per material index m, in W/m.
+
+    One adjoint solve: A_ff z = c_f with c = ∂Φ/∂θ; then ∂Φ/∂ln λₘ = Σ_{e∈m} wₑᵀ Kₑ θₑ with
+    w = e − z (e marks fixed dofs whose reaction is part of Φ), because ∂A/∂ln λₘ = Kₘ.
+    Both conductivity components of a material scale together.
+    """
+    c, explicit = problem.flow_functional(group_index)
+    w = explicit.copy()
+    w[problem.free] -= problem.solver.solve(c[problem.free])
+    family = FAMILIES[problem.space.order]
+    local = family.local_stiffness(problem.space, problem.conductivity)
+    dofs = problem.space.cell_dofs
+    per_element = np.einsum("ei,eij,ej->e", w[dofs], local, theta[dofs])
+    return np.bincount(problem.space.mesh.material, weights=per_element, minlength=materials)
+
+
+def element_heat_flux(space: Space, conductivity: np.ndarray, theta: np.ndarray) -> np.ndarray:
+    """Heat-flux density vector q = −Λ∇θ (E, 2) at each triangle's centroid, W/m²."""
+    from coldseam.fem.space import barycentric_gradients
+
+    grad_lambda, _ = barycentric_gradients(space.mesh)
+    if space.order == 1:
+        grads = grad_lambda
+    else:
+        grads = p2.basis_gradients(grad_lambda, np.full(3, 1.0 / 3.0))
+    gradient = np.einsum("eid,ei->ed", grads, theta[space.cell_dofs])
+    return -conductivity * gradient

@@ -1,0 +1,154 @@
+"""Classify the outline of a partition: exposed to which boundary, or adiabatic.
+
+Boundary paths and probes split outline segments where they start, end or sit, so that every
+segment is wholly exposed or wholly adiabatic. A segment is exposed to a boundary when both ends
+and its midpoint lie within ``TOLERANCE × extent`` of the path; a later boundary wins.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+import shapely
+from shapely.geometry import LineString, Point
+
+from coldseam.errors import InvalidSection
+from coldseam.geometry.partition import Partition, where
+from coldseam.schema.section import Section
+
+TOLERANCE = 1e-5
+
+
+@dataclass
+class Classified:
+    partition: Partition
+    exposure: dict[tuple[int, int], int]  # outline segment -> boundary index
+    adiabatic: list[tuple[int, int]]
+    probe_points: list[int | None]  # point index of a probe on a vertex/edge, else None
+    probe_faces: list[int | None]  # face index containing an interior probe
+    probe_xy: np.ndarray  # (K, 2) probe coordinates, metres
+
+
+def classify(section: Section, partition: Partition) -> Classified:
+    tol = TOLERANCE * partition.extent
+    paths = [LineString(np.asarray(b.path, float) * section.scale) for b in section.boundaries]
+    for path in paths:
+        for x, y in path.coords:
+            _split_at(partition, np.array([x, y]), tol)
+    probe_points, probe_faces = _place_probes(section, partition, tol)
+    segments = partition.segments()
+    outline = [s for s, faces in segments.items() if len(faces) == 1]
+    exposure = _match_paths(section, partition, outline, paths, tol)
+    _check_connected(section, partition, segments, exposure)
+    adiabatic = [s for s in outline if s not in exposure]
+    probe_xy = np.array([p.point for p in section.probes], float).reshape(-1, 2) * section.scale
+    return Classified(partition, exposure, adiabatic, probe_points, probe_faces, probe_xy)
+
+
+def _split_at(partition: Partition, p: np.ndarray, tol: float) -> int | None:
+    """Insert point p into every ring segment it lies on (within tol); its index, if on one."""
+    pts = partition.points
+    near = np.flatnonzero(np.linalg.norm(pts - p, axis=1) <= tol)
+    if len(near):
+        return int(near[0])
+    new_index = None
+    for face in partition.faces:
+        for ring in face.rings:
+            for k in range(len(ring)):
+                a, b = ring[k], ring[(k + 1) % len(ring)]
+                if _on_segment(pts[a], pts[b], p, tol):
+                    if new_index is None:
+                        partition.points = pts = np.vstack([pts, p])
+                        new_index = len(pts) - 1
+                    ring.insert(k + 1, new_index)
+                    break
+    return new_index
+
+
+def _on_segment(a: np.ndarray, b: np.ndarray, p: np.ndarray, tol: float) -> bool:
+    d = b - a
+    t = float(np.dot(p - a, d) / np.dot(d, d))
+    if t <= 0 or t >= 1:
+        return False
+    return float(np.linalg.norm(a + t * d - p)) <= tol
+
+
+def _place_probes(section: Section, partition: Partition, tol: float):
+    polygons = [shapely.Polygon(partition.points[f.rings[0]],
+                                [partition.points[r] for r in f.rings[1:]])
+                for f in partition.faces]
+    probe_points, probe_faces = [], []
+    for i, probe in enumerate(section.probes):
+        p = np.asarray(probe.point, float) * section.scale
+        index = _split_at(partition, p, tol)
+        face = None
+        if index is None:
+            hits = [k for k, poly in enumerate(polygons) if poly.contains(Point(p))]
+            if not hits:
+                raise InvalidSection(
+                    f"probe '{probe.id}' at {where(section, *p)} lies outside the section",
+                    f"/section/probes/{i}/point")
+            face = hits[0]
+        probe_points.append(index)
+        probe_faces.append(face)
+    return probe_points, probe_faces
+
+
+def _match_paths(section, partition, outline, paths, tol) -> dict[tuple[int, int], int]:
+    pts = partition.points
+    exposure: dict[tuple[int, int], int] = {}
+    for b, path in enumerate(paths):
+        buffer = path.buffer(tol, cap_style="flat" if path.length > 0 else "round")
+        hit = False
+        for seg in outline:
+            a, c = pts[seg[0]], pts[seg[1]]
+            probe = shapely.points([a, c, 0.5 * (a + c)])
+            if np.all(shapely.distance(path, probe) <= tol):
+                exposure[seg] = b
+                hit = True
+        if not hit:
+            _explain_miss(section, partition, outline, b, path, buffer)
+    return exposure
+
+
+def _explain_miss(section, partition, outline, b, path, _buffer) -> None:
+    pts = partition.points
+    rings = shapely.MultiLineString([[pts[a], pts[c]] for a, c in outline])
+    gap = path.distance(rings)
+    env = section.boundaries[b].environment
+    if gap <= TOLERANCE * partition.extent:
+        text = ("touches the section outline only at points, or runs along an interface "
+                "between two regions, not along an outer surface")
+    else:
+        text = f"does not run along the section outline: it stays {gap / section.scale:.4g} " \
+               f"{section.unit} away from it"
+    raise InvalidSection(f"boundary {b} ({env}): the path {text}",
+                         f"/section/boundaries/{b}/path")
+
+
+def _check_connected(section, partition, segments, exposure) -> None:
+    """Every connected group of faces must touch at least one exposed segment."""
+    n = len(partition.faces)
+    parent = list(range(n))
+
+    def root(k: int) -> int:
+        while parent[k] != k:
+            parent[k] = parent[parent[k]]
+            k = parent[k]
+        return k
+
+    for faces in segments.values():
+        if len(faces) == 2:
+            parent[root(faces[0])] = root(faces[1])
+    exposed_roots = {root(segments[s][0]) for s in exposure}
+    for k in range(n):
+        if root(k) not in exposed_roots:
+            face = partition.faces[k]
+            x, y = partition.points[face.rings[0]].mean(axis=0)
+            material = section.materials[face.material].id
+            raise InvalidSection(
+                f"the part of the section made of {material} near {where(section, x, y)} "
+                "touches no exposed boundary: it floats free of the rest, so its temperature "
+                "is undefined. Join it to the section or give it a boundary path",
+                "/section/regions")

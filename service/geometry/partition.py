@@ -1,0 +1,161 @@
+"""Resolve a section's regions into a planar partition of disjoint material faces.
+
+Regions are painted in list order (a later region covers an earlier one). The result is a
+planar graph: points (metres), faces as rings of point indices, each face with one material;
+every piece of the outline is later classified against the boundary paths (see outline.py).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+import shapely
+from shapely.geometry import MultiLineString, Polygon
+
+from coldseam.errors import InvalidSection
+from coldseam.schema.section import Section
+
+#: Coordinates are snapped to this fraction of the section extent.
+GRID = 1e-9
+#: Pieces thinner than this fraction of the extent (2·area/perimeter) are slivers.
+SLIVER = 1e-5
+
+
+@dataclass
+class Face:
+    material: int
+    rings: list[list[int]]  # exterior first (counter-clockwise), then holes
+
+
+@dataclass
+class Partition:
+    points: np.ndarray  # (P, 2) metres
+    faces: list[Face]
+    extent: float  # metres
+    scale: float  # metres per section unit
+    pieces: list[tuple[int, shapely.Polygon]]  # material index, polygon (metres)
+
+    def segments(self) -> dict[tuple[int, int], list[int]]:
+        """Every segment as a sorted point pair, with the faces it borders."""
+        out: dict[tuple[int, int], list[int]] = {}
+        for index, face in enumerate(self.faces):
+            for ring in face.rings:
+                for a, b in zip(ring, ring[1:] + ring[:1], strict=True):
+                    out.setdefault((min(a, b), max(a, b)), []).append(index)
+        return out
+
+
+def where(section: Section, x: float, y: float) -> str:
+    """A point in metres, written in the section unit for messages."""
+    s = section.scale
+    fmt = "{:.4g}" if section.unit == "m" else "{:.1f}"
+    return f"({fmt.format(x / s)}, {fmt.format(y / s)}) {section.unit}"
+
+
+def region_polygons(section: Section) -> list[Polygon]:
+    """Each region as a valid shapely polygon in metres, or InvalidSection saying why not."""
+    polygons = []
+    for i, region in enumerate(section.regions):
+        s = section.scale
+        shell = np.asarray(region.polygon, float) * s
+        holes = [np.asarray(h, float) * s for h in region.holes]
+        pointer = f"/section/regions/{i}"
+        for k, hole in enumerate(holes):
+            if len(hole) < 3:
+                raise InvalidSection(f"region {i} ({region.material}): hole {k} needs at least "
+                                     "3 points", f"{pointer}/holes/{k}")
+        polygon = Polygon(shell, holes)
+        _check_polygon(section, i, polygon, pointer)
+        polygons.append(shapely.orient_polygons(polygon) if hasattr(shapely, "orient_polygons")
+                        else shapely.geometry.polygon.orient(polygon))
+    return polygons
+
+
+def _check_polygon(section: Section, i: int, polygon: Polygon, pointer: str) -> None:
+    label = f"region {i} ({section.regions[i].material})"
+    if not polygon.is_valid:
+        reason = shapely.is_valid_reason(polygon)
+        near = ""
+        if "[" in reason:
+            x, y = (float(v) for v in reason[reason.index("[") + 1:reason.index("]")].split()[:2])
+            near = f" near {where(section, x, y)}"
+            reason = reason[:reason.index("[")]
+        words = {"Self-intersection": "polygon crosses itself",
+                 "Ring Self-intersection": "polygon touches itself",
+                 "Hole lies outside shell": "a hole lies outside the polygon",
+                 "Interior is disconnected": "holes cut the polygon into separate parts",
+                 "Nested holes": "holes are nested", "Too few points": "polygon has too few "
+                 "distinct points"}
+        text = words.get(reason.strip(), reason.strip().lower())
+        raise InvalidSection(f"{label}: {text}{near}", f"{pointer}/polygon")
+    if polygon.area <= 0:
+        raise InvalidSection(f"{label}: polygon encloses no area", f"{pointer}/polygon")
+
+
+def paint(section: Section, polygons: list[Polygon], grid: float) -> list[tuple[int, Polygon]]:
+    """Painter's order: each region minus everything drawn after it. (region index, part)."""
+    materials = {m.id: k for k, m in enumerate(section.materials)}
+    pieces: list[tuple[int, Polygon]] = []
+    covered = None
+    for i in reversed(range(len(polygons))):
+        poly = shapely.set_precision(polygons[i], grid)
+        visible = poly if covered is None else shapely.difference(poly, covered, grid_size=grid)
+        covered = poly if covered is None else shapely.union(covered, poly, grid_size=grid)
+        for part in getattr(visible, "geoms", [visible]):
+            if isinstance(part, Polygon) and not part.is_empty:
+                pieces.append((i, part))
+    pieces.reverse()
+    return [(materials[section.regions[i].material], part) for i, part in
+            _check_slivers(section, pieces)]
+
+
+def _check_slivers(section: Section, pieces: list[tuple[int, Polygon]]):
+    extent = _extent(shapely.union_all([p for _, p in pieces]))
+    for i, part in pieces:
+        thickness = 2 * part.area / part.length
+        if thickness < SLIVER * extent:
+            c = part.representative_point()
+            raise InvalidSection(
+                f"region {i} ({section.regions[i].material}) leaves a sliver only "
+                f"{thickness / section.scale:.3g} {section.unit} thin near {where(section, c.x, c.y)}"
+                " once overlapping regions are resolved: align the outlines so they meet "
+                "exactly, or overlap them clearly", f"/section/regions/{i}/polygon")
+    return pieces
+
+
+def _extent(geometry) -> float:
+    x0, y0, x1, y1 = geometry.bounds
+    return max(x1 - x0, y1 - y0)
+
+
+def build_partition(section: Section) -> Partition:
+    """Planar partition of the section: shared points, faces with materials, rings."""
+    polygons = region_polygons(section)
+    extent = _extent(shapely.union_all(polygons))
+    grid = GRID * extent
+    pieces = paint(section, polygons, grid)
+    lines = [ring for _, p in pieces for ring in [p.exterior, *p.interiors]]
+    noded = shapely.union_all(MultiLineString([list(r.coords) for r in lines]), grid_size=grid)
+    faces_geo = list(shapely.get_parts(shapely.polygonize(shapely.get_parts(noded))))
+    tree = shapely.STRtree([p for _, p in pieces])
+    points: dict[tuple[float, float], int] = {}
+    faces = []
+    for face in faces_geo:
+        inside = face.representative_point()
+        hits = [k for k in tree.query(inside, predicate="intersects")]
+        if not hits:
+            continue  # a void: part of the outline, not of the solid
+        material = pieces[int(hits[0])][0]
+        rings = [_ring_indices(r, points, ccw=(n == 0)) for n, r in
+                 enumerate([face.exterior, *face.interiors])]
+        faces.append(Face(material, rings))
+    coords = np.array(sorted(points, key=points.get), float).reshape(-1, 2)
+    return Partition(coords, faces, extent, section.scale, pieces)
+
+
+def _ring_indices(ring, points: dict, ccw: bool) -> list[int]:
+    coords = list(ring.coords)[:-1]
+    if shapely.LinearRing(coords).is_ccw != ccw:
+        coords.reverse()
+    return [points.setdefault((float(x), float(y)), len(points)) for x, y in coords]
