@@ -16,7 +16,7 @@ from shapely.geometry import MultiLineString, Polygon
 from coldseam.errors import InvalidSection
 from coldseam.schema.section import Section
 
-#: Coordinates are snapped to this fraction of the section extent.
+#: Coordinates are snapped to a power-of-ten grid near this fraction of the section extent.
 GRID = 1e-9
 #: Pieces thinner than this fraction of the extent (2·area/perimeter) are slivers.
 SLIVER = 1e-5
@@ -133,7 +133,7 @@ def build_partition(section: Section) -> Partition:
     """Planar partition of the section: shared points, faces with materials, rings."""
     polygons = region_polygons(section)
     extent = _extent(shapely.union_all(polygons))
-    grid = GRID * extent
+    grid = 10.0 ** np.floor(np.log10(GRID * extent))  # a power of ten keeps round inputs exact
     pieces = paint(section, polygons, grid)
     lines = [ring for _, p in pieces for ring in [p.exterior, *p.interiors]]
     noded = shapely.union_all(MultiLineString([list(r.coords) for r in lines]), grid_size=grid)

@@ -1,28 +1,128 @@
 """Evaluation of one request: geometry, mesh levels, solves, ψ, fRsi, certificate.
 
-Interface (stable; the engine behind it is being written):
-
-    evaluate(request: EvaluationRequest, progress: Callable[[str, float], None] | None = None)
-        -> Evaluation
+    evaluate(request, progress=None) -> Evaluation
 
 ``Evaluation.result`` is the JSON-able result document of model-v1 (without ``id``; the API and
 CLI add ``id = request_digest(request)``). ``Evaluation.field`` is the temperature field of the
-final mesh for drawing: see ``FIELD_FORMAT`` below. ``progress(stage, fraction)`` is called with
-stages "geometry", "meshing", "solving", "post-processing" and a fraction 0..1 of the whole.
+final mesh for drawing (see ``coldseam.thermal.field``). ``progress(stage, fraction)`` is called
+with stages "geometry", "meshing", "solving", "post-processing" and a fraction 0..1.
 """
 
-FIELD_FORMAT = """
-{"unit": "m",
- "points": [[x, y], ...],            # metres
- "triangles": [[a, b, c], ...],      # 0-based indices into points (linear sub-triangles)
- "temperature": [θ, ...],            # °C per point, design (heat-flow) run
- "heat_flux": [q, ...],              # |q| in W/m² per triangle
- "material": [k, ...],               # index into "materials" per triangle
- "materials": [{"id": ..., "conductivity": [λx, λy]}],
- "pieces": [{"material": id, "polygon": [[x, y], ...], "holes": [[[x, y], ...]]}],  # metres
- "boundaries": [{"environment": id, "side": ..., "surface_resistance": R,
-                 "segments": [[[x1, y1], [x2, y2]], ...]}],                        # metres
- "adiabatic": [[[x1, y1], [x2, y2]], ...],
- "min_surface": {"<env id>": {"temperature": θ, "at": [x, y]}},
- "condensation_min": {"temperature": θ, "at": [x, y]} | null}
-"""
+from __future__ import annotations
+
+import logging
+from collections.abc import Callable
+from dataclasses import dataclass
+
+import numpy as np
+
+from coldseam import CAUTION, ENGINE_VERSION
+from coldseam.errors import LimitExceeded
+from coldseam.schema.evaluation import EvaluationRequest
+from coldseam.thermal import results
+from coldseam.thermal.field import field_document
+from coldseam.thermal.levels import ISO_RULE, TARGETS, LevelFigures, compare, met, mesh_levels
+from coldseam.thermal.model import ThermalModel, prepare
+from coldseam.thermal.psi import FlankingU, flanking_values
+from coldseam.thermal.solve import LevelSolution, solve_level
+
+log = logging.getLogger(__name__)
+Progress = Callable[[str, float], None]
+
+
+@dataclass
+class Evaluation:
+    result: dict
+    field: dict
+
+
+def evaluate(request: EvaluationRequest, progress: Progress | None = None) -> Evaluation:
+    report = progress or (lambda stage, fraction: None)
+    report("geometry", 0.0)
+    model = prepare(request)
+    flanking = flanking_values(model)
+    pair = results.psi_pair(model)
+    report("meshing", 0.05)
+    levels, solution, warnings = _certify(model, flanking, pair, report)
+    report("post-processing", 0.9)
+    result = _result(model, flanking, pair, levels, solution, warnings)
+    field = field_document(model, solution)
+    report("post-processing", 1.0)
+    return Evaluation(result, field)
+
+
+def _certify(model: ThermalModel, flanking: list[FlankingU], pair, report: Progress):
+    options = model.request.options
+    order = 2 if options.element == "P2" else 1
+    levels: list[LevelFigures] = []
+    warnings: list[str] = []
+    solution: LevelSolution | None = None
+    for k, (mesh, probes) in enumerate(mesh_levels(model.classified)):
+        if mesh.nodes > options.max_nodes:
+            if solution is None:
+                raise LimitExceeded(
+                    f"even the coarsest mesh needs {mesh.nodes} nodes, above the limit of "
+                    f"{options.max_nodes}", "/options/max_nodes")
+            warnings.append(f"refinement stopped at {levels[-1].nodes} nodes: the next level "
+                            f"would exceed the node limit of {options.max_nodes}")
+            break
+        solution = solve_level(model, mesh, probes, order)
+        figures = results.level_figures(model, solution, flanking, pair)
+        if levels:
+            compare(levels[-1], figures)
+        levels.append(figures)
+        report("solving", min(0.85, 0.1 + 0.1 * (k + 1)))
+        if met(figures, options.accuracy):
+            break
+        if k + 1 >= options.max_levels:
+            warnings.append(f"refinement stopped at the level limit ({options.max_levels}) "
+                            "before the accuracy target was met")
+            break
+    return levels, solution, warnings
+
+
+def _result(model, flanking, pair, levels, solution: LevelSolution, warnings) -> dict:
+    options = model.request.options
+    final = levels[-1]
+    flow_target, temperature_target = TARGETS[options.accuracy]
+    out = results.heat_flow_block(model, solution)
+    out["psi"] = results.psi_block(model, solution, flanking, pair)
+    out["probes"] = results.probe_block(model, solution)
+    out["surfaces"] = results.surface_block(model, solution)
+    out["condensation"] = results.condensation_block(model, solution)
+    out["mesh"] = {
+        "nodes": int(final.nodes), "elements": int(final.elements), "dofs": int(final.dofs),
+        "element": options.element,
+        "relative_change": final.relative_change,
+        "converged": bool(final.relative_change is not None and
+                          final.relative_change < ISO_RULE),
+        "target": {"relative_change": flow_target, "temperature_change": temperature_target},
+        "target_met": met(final, options.accuracy),
+        "compared_with_nodes": levels[-2].nodes if len(levels) > 1 else None,
+        "levels": [level.as_dict() for level in levels],
+    }
+    if options.sensitivities and pair is not None:
+        out["sensitivities"] = results.sensitivities(model, solution, flanking, pair)
+    warnings = warnings + results.energy_warnings(model, solution)
+    warnings += results.cutoff_warnings(model, solution)
+    out["materials"] = [{"id": m.id, "conductivity": list(m.conductivity), "source": m.source}
+                        for m in model.materials]
+    out["warnings"] = warnings
+    out["caution"] = CAUTION
+    out["engine_version"] = ENGINE_VERSION
+    out["name"] = model.section.name
+    return _jsonable(out)
+
+
+def _jsonable(value):
+    if isinstance(value, dict):
+        return {k: _jsonable(v) for k, v in value.items()}
+    if isinstance(value, list | tuple):
+        return [_jsonable(v) for v in value]
+    if isinstance(value, np.ndarray):
+        return _jsonable(value.tolist())
+    if isinstance(value, np.floating | float):
+        return float(value)
+    if isinstance(value, np.integer):
+        return int(value)
+    return value

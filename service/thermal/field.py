@@ -1,0 +1,80 @@
+"""The temperature field of the final level as compact arrays, for drawing.
+
+{"unit": "m", "points": [[x, y]], "triangles": [[a, b, c]] (linear sub-triangles),
+ "temperature": [θ] per point (design run), "heat_flux": [|q| W/m²] per triangle,
+ "material": [k] per triangle, "materials": [{"id", "conductivity"}],
+ "pieces": [{"material", "polygon", "holes"}], "boundaries": [{"environment", "side",
+ "surface_resistance", "segments"}], "adiabatic": [segments],
+ "min_surface": {env: {"temperature", "at"}}, "condensation_min": {...} | null}
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from coldseam.fem.system import element_heat_flux
+from coldseam.thermal.model import ThermalModel
+from coldseam.thermal.results import interior_minimum
+from coldseam.thermal.solve import LevelSolution
+
+#: P2 triangle (vertices 0,1,2; sides 3=01, 4=12, 5=20) drawn as four linear triangles.
+P2_SPLIT = np.array([[0, 3, 5], [3, 1, 4], [5, 4, 2], [3, 4, 5]])
+
+
+def field_document(model: ThermalModel, solution: LevelSolution) -> dict:
+    space, run = solution.space, solution.design
+    theta = run.theta
+    flux = np.linalg.norm(element_heat_flux(space, run.problem.conductivity, theta), axis=1)
+    if space.order == 2:
+        triangles = space.cell_dofs[:, P2_SPLIT].reshape(-1, 3)
+        repeat = len(P2_SPLIT)
+    else:
+        triangles, repeat = space.cell_dofs, 1
+    part = model.classified.partition
+    return {
+        "unit": "m",
+        "points": np.round(space.dof_points, 7).tolist(),
+        "triangles": triangles.tolist(),
+        "temperature": np.round(theta, 4).tolist(),
+        "heat_flux": np.round(np.repeat(flux, repeat), 3).tolist(),
+        "material": np.repeat(space.mesh.material, repeat).tolist(),
+        "materials": [{"id": m.id, "conductivity": list(m.conductivity)}
+                      for m in model.materials],
+        "pieces": [{"material": model.materials[k].id,
+                    "polygon": np.round(poly.exterior.coords, 7).tolist(),
+                    "holes": [np.round(r.coords, 7).tolist() for r in poly.interiors]}
+                   for k, poly in part.pieces],
+        "boundaries": _boundaries(model),
+        "adiabatic": [part.points[list(s)].round(7).tolist() for s in model.classified.adiabatic],
+        "min_surface": {env: {"temperature": block["min_temperature"], "at": block["at"]}
+                        for env, block in _surface_minima(model, solution).items()},
+        "condensation_min": _condensation_min(model, solution),
+    }
+
+
+def _boundaries(model: ThermalModel) -> list[dict]:
+    part = model.classified.partition
+    out = []
+    for b, boundary in enumerate(model.section.boundaries):
+        env = model.section.environments[model.boundary_env[b]]
+        segments = [part.points[list(s)].round(7).tolist()
+                    for s, owner in model.classified.exposure.items() if owner == b]
+        out.append({"environment": env.id, "side": env.side,
+                    "surface_resistance": boundary.surface_resistance, "segments": segments})
+    return out
+
+
+def _surface_minima(model, solution) -> dict:
+    from coldseam.thermal.results import surface_block
+
+    return surface_block(model, solution)
+
+
+def _condensation_min(model, solution) -> dict | None:
+    run = solution.condensation
+    if run is None:
+        return None
+    minimum = interior_minimum(model, run)
+    if minimum is None:
+        return None
+    return {"temperature": minimum[0], "at": run.problem.space.dof_points[minimum[1]].tolist()}

@@ -1,0 +1,87 @@
+"""The prepared model of one request: classified geometry plus per-boundary physics."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from coldseam.geometry.outline import Classified, classify
+from coldseam.geometry.partition import build_partition
+from coldseam.schema.evaluation import EvaluationRequest
+from coldseam.schema.section import Section
+
+
+@dataclass
+class MaterialUse:
+    id: str
+    conductivity: tuple[float, float]  # [λx, λy] W/(m·K)
+    source: str
+
+
+@dataclass
+class ThermalModel:
+    request: EvaluationRequest
+    classified: Classified
+    materials: list[MaterialUse]
+    env_temperature: np.ndarray  # (N,) °C per environment
+    env_interior: np.ndarray  # (N,) bool
+    boundary_env: np.ndarray  # (Bd,) environment index per section boundary
+    boundary_resistance: np.ndarray  # (Bd,) design Rs, m²K/W
+    boundary_condensation_resistance: np.ndarray  # (Bd,) Rs for the fRsi run
+
+    @property
+    def section(self) -> Section:
+        return self.request.section
+
+    @property
+    def conductivities(self) -> np.ndarray:
+        return np.array([m.conductivity for m in self.materials], float)
+
+    @property
+    def env_ids(self) -> list[str]:
+        return [e.id for e in self.section.environments]
+
+    def has_condensation_run(self) -> bool:
+        return bool(self.env_interior.any() and (~self.env_interior).any())
+
+
+def resolve_materials(section: Section) -> list[MaterialUse]:
+    uses = []
+    library_ids = [m for m in section.materials if m.conductivity is None]
+    resolved = {}
+    if library_ids:
+        from coldseam.materials import resolve_materials as from_library
+
+        resolved = from_library(section)
+    for m in section.materials:
+        if m.conductivity is not None:
+            lam = m.conductivity if isinstance(m.conductivity, tuple) else (m.conductivity,) * 2
+            source = "given in the request"
+            if m.library:
+                source += f" (overrides library '{m.library}')"
+            uses.append(MaterialUse(m.id, (float(lam[0]), float(lam[1])), source))
+        else:
+            lx, ly, source = resolved[m.id]
+            uses.append(MaterialUse(m.id, (float(lx), float(ly)), source))
+    return uses
+
+
+def prepare(request: EvaluationRequest) -> ThermalModel:
+    section = request.section
+    materials = resolve_materials(section)
+    partition = build_partition(section)
+    classified = classify(section, partition)
+    env_index = {e.id: k for k, e in enumerate(section.environments)}
+    default_rsi = (request.condensation.interior_surface_resistance
+                   if request.condensation else 0.25)
+    interior = np.array([e.side == "interior" for e in section.environments])
+    boundary_env = np.array([env_index[b.environment] for b in section.boundaries], int)
+    design = np.array([b.surface_resistance for b in section.boundaries], float)
+    condensation = np.array([
+        (b.condensation_surface_resistance if b.condensation_surface_resistance is not None
+         else default_rsi) if interior[boundary_env[k]] else b.surface_resistance
+        for k, b in enumerate(section.boundaries)], float)
+    return ThermalModel(request, classified, materials,
+                        np.array([e.temperature for e in section.environments], float),
+                        interior, boundary_env, design, condensation)

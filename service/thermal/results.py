@@ -1,0 +1,180 @@
+"""Result blocks of model-v1 computed from a solved level."""
+
+from __future__ import annotations
+
+import numpy as np
+
+from coldseam.errors import InvalidSection
+from coldseam.fem.system import log_conductivity_sensitivity
+from coldseam.thermal import humidity
+from coldseam.thermal.levels import LevelFigures
+from coldseam.thermal.model import ThermalModel
+from coldseam.thermal.psi import FlankingU
+from coldseam.thermal.solve import LevelSolution, Run
+
+BALANCE = 1e-4  # ISO 10211: Σ flows / (½ Σ |flows|)
+
+
+def psi_pair(model: ThermalModel) -> tuple[int, int] | None:
+    """Environments (a, b) whose coupling is L2D: the ψ request's pair, or the only two."""
+    ids = model.env_ids
+    psi = model.request.psi
+    if psi is not None and psi.environments is not None:
+        for k, env in enumerate(psi.environments):
+            if env not in ids:
+                raise InvalidSection(f"environment '{env}' is not among the environments "
+                                     f"({', '.join(ids)})", f"/psi/environments/{k}")
+        a, b = (ids.index(e) for e in psi.environments)
+        if a == b:
+            raise InvalidSection("ψ needs two different environments", "/psi/environments")
+        return a, b
+    if len(ids) == 2:
+        interior = np.flatnonzero(model.env_interior)
+        a = int(interior[0]) if len(interior) == 1 else 0
+        return a, 1 - a
+    if psi is not None:
+        raise InvalidSection("with more than two environments, say between which two ψ is "
+                             "computed: psi.environments = [interior id, exterior id]",
+                             "/psi/environments")
+    return None
+
+
+def interior_minimum(model: ThermalModel, run: Run) -> tuple[float, int] | None:
+    """Lowest temperature on any interior surface (actual temperatures) and its dof."""
+    space = run.problem.space
+    interior_edge = model.env_interior[model.boundary_env[space.mesh.boundary_group]]
+    dofs = np.unique(space.edge_dofs[interior_edge])
+    if len(dofs) == 0:
+        return None
+    theta = run.theta
+    k = int(dofs[np.argmin(theta[dofs])])
+    return float(theta[k]), k
+
+
+def level_figures(model, solution: LevelSolution, flanking: list[FlankingU], pair):
+    run = solution.design
+    coupling = run.coupling
+    upper = coupling[np.triu_indices(len(coupling), 1)]
+    sum_ul = sum(f.u_value * f.length for f in flanking)
+    psi = float(coupling[pair] - sum_ul) if (pair and model.request.psi) else None
+    checked = solution.condensation or run
+    minimum = interior_minimum(model, checked)
+    return LevelFigures(
+        nodes=solution.mesh.nodes, dofs=solution.space.dofs, elements=solution.mesh.elements,
+        heat_flow=float(0.5 * np.abs(run.heat_flows).sum()), coupling_sum=float(upper.sum()),
+        psi=psi, min_temperature=None if minimum is None else minimum[0])
+
+
+def heat_flow_block(model: ThermalModel, solution: LevelSolution) -> dict:
+    run = solution.design
+    ids = model.env_ids
+    out: dict = {"heat_flows": dict(zip(ids, run.heat_flows.tolist(), strict=True))}
+    coupling = run.coupling
+    if len(ids) == 2:
+        out["L2D"] = float(0.5 * (coupling[0, 1] + coupling[1, 0]))
+    else:
+        out["coupling_coefficients"] = {"environments": ids,
+                                        "matrix": (0.5 * (coupling + coupling.T)).tolist()}
+    return out
+
+
+def psi_block(model, solution, flanking: list[FlankingU], pair) -> dict | None:
+    psi = model.request.psi
+    if psi is None or pair is None:
+        return None
+    coupling = solution.design.coupling
+    l2d = float(0.5 * (coupling[pair] + coupling[pair[::-1]]))
+    sum_ul = sum(f.u_value * f.length for f in flanking)
+    ids = model.env_ids
+    return {
+        "value": l2d - sum_ul, "L2D": l2d, "sum_UL": sum_ul, "dimensions": psi.dimensions,
+        "environments": [ids[pair[0]], ids[pair[1]]],
+        "flanking": [_flanking_dict(model, f) for f in flanking],
+    }
+
+
+def _flanking_dict(model, f: FlankingU) -> dict:
+    out = {"id": f.id, "u_value": f.u_value, "length": f.length, "UL": f.u_value * f.length}
+    if f.layers:
+        out["layers"] = [{"material": model.materials[layer.material].id,
+                          "thickness": layer.thickness, "conductivity": layer.conductivity}
+                         for layer in f.layers]
+        out["surface_resistances"] = list(f.surface_resistances)
+        out["source"] = "cut: U = 1/(Rs + Σ d/λ + Rs), ISO 6946"
+    else:
+        out["source"] = "given"
+    return out
+
+
+def probe_block(model, solution: LevelSolution) -> dict:
+    theta = solution.design.theta
+    return {p.id: float(theta[k]) for p, k in
+            zip(model.section.probes, solution.probe_nodes, strict=True)}
+
+
+def surface_block(model, solution: LevelSolution) -> dict:
+    run = solution.design
+    space = run.problem.space
+    theta = run.theta
+    env_of_edge = model.boundary_env[space.mesh.boundary_group]
+    out = {}
+    for k, env in enumerate(model.section.environments):
+        dofs = np.unique(space.edge_dofs[env_of_edge == k])
+        low, high = int(dofs[np.argmin(theta[dofs])]), int(dofs[np.argmax(theta[dofs])])
+        out[env.id] = {"side": env.side, "min_temperature": float(theta[low]),
+                       "at": space.dof_points[low].tolist(),
+                       "max_temperature": float(theta[high])}
+    return out
+
+
+def condensation_block(model: ThermalModel, solution: LevelSolution) -> dict | None:
+    run = solution.condensation
+    if run is None:
+        return None
+    temperatures = model.env_temperature
+    minimum = interior_minimum(model, run)
+    if minimum is None:
+        return None
+    theta_min, k = minimum
+    weights = run.unit[k]
+    interior = np.flatnonzero(model.env_interior)
+    exterior = np.flatnonzero(~model.env_interior)
+    theta_i = float(temperatures[interior].max())
+    theta_e = float(temperatures[exterior].min())
+    if len(temperatures) == 2:
+        frsi = float(weights[interior[0]])
+    else:
+        frsi = (theta_min - theta_e) / (theta_i - theta_e) if theta_i > theta_e else float("nan")
+    block = humidity.assess_condensation(frsi, model.request.condensation, theta_i, theta_e)
+    block["at"] = run.problem.space.dof_points[k].tolist()
+    block["min_temperature_section"] = theta_min
+    block["temperature_weighting"] = dict(zip(model.env_ids, weights.tolist(), strict=True))
+    return block
+
+
+def sensitivities(model, solution: LevelSolution, flanking, pair) -> list[dict]:
+    """∂L2D/∂ln λ and ∂ψ/∂ln λ per material (W/(m·K) per unit relative change of λ)."""
+    run = solution.design
+    a, b = pair
+    groups = np.flatnonzero(model.boundary_env == a)
+    n = len(model.materials)
+    dflow = log_conductivity_sensitivity(run.problem, run.unit[:, b], groups, n)
+    dl2d = -dflow  # L_ab = −Φ_a with θ_b = 1
+    dsum_ul = sum((f.length * f.dU_dlnlambda(n) for f in flanking), np.zeros(n))
+    return [{"material": m.id, "dL2D_dlnlambda": float(dl2d[i]),
+             "dpsi_dlnlambda": float(dl2d[i] - dsum_ul[i])} for i, m in enumerate(model.materials)]
+
+
+def energy_warnings(model, solution: LevelSolution) -> list[str]:
+    flows = solution.design.heat_flows
+    scale = 0.5 * np.abs(flows).sum()
+    if scale > 0 and abs(flows.sum()) / scale > BALANCE:
+        return [f"energy balance off by {abs(flows.sum()) / scale:.1e} of the heat flow "
+                "(ISO 10211 asks for under 1e-4)"]
+    return []
+
+
+def cutoff_warnings(model, solution: LevelSolution) -> list[str]:
+    from coldseam.thermal.cutoff import check_cutoffs
+
+    return check_cutoffs(model, solution)
