@@ -31,3 +31,13 @@ test("pointers map to the deepest known input name", () => {
   assert.equal(matchField("/section/regions/0", ["width"]), null);
   assert.equal(matchField("", ["width"]), null);
 });
+
+test("Coldseam's own error body: field and message beside a joined detail", () => {
+  const body = { detail: "/section/unit: 'unit' is required", field: "/section/unit",
+    message: "'unit' is required", kind: "InvalidSection", request_id: "r1" };
+  assert.deepEqual(problems(body, 422), [{ field: "/section/unit", message: "'unit' is required" }]);
+  const many = { ...body, errors: [{ field: "/a", message: "x" }, { field: "/b", message: "y" }] };
+  assert.deepEqual(problems(many, 422).map((p) => p.field), ["/a", "/b"]);
+  assert.deepEqual(problems({ detail: "no evaluation abc (for this key)" }, 404),
+    [{ field: "", message: "no evaluation abc (for this key)" }]);
+});

@@ -47,3 +47,15 @@ test("CSV quoting follows RFC 4180", () => {
   assert.equal(csvField(undefined), "");
   assert.equal(toCsv([["psi", 0.061, "W/(m·K)"]]), "quantity,value,unit\r\npsi,0.061,W/(m·K)\r\n");
 });
+
+test("exterior surfaces are θse, and coupling coefficients of three environments are listed", () => {
+  const rows = keyFigureRows({
+    id: "y",
+    surfaces: { in: { side: "interior", min_temperature: 17 }, out: { side: "exterior", min_temperature: 1 } },
+    coupling_coefficients: { environments: ["a", "b", "c"], matrix: [[1, 0.2, 0.3], [0.2, 1, 0.4], [0.3, 0.4, 1]] },
+  });
+  const names = rows.map((r) => r[0]);
+  assert.ok(names.includes("theta_si,min in") && names.includes("theta_se,min out"));
+  assert.deepEqual(rows.filter((r) => r[0].startsWith("L ")).map((r) => [r[0], r[1]]),
+    [["L a-b", 0.2], ["L a-c", 0.3], ["L b-c", 0.4]]);
+});

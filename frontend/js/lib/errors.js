@@ -1,6 +1,7 @@
 // API error bodies to a list of {field, message}, and matching of a field pointer to a form
-// input. Accepts Coldseam's own `detail` ({field, message} or a list of them), FastAPI's
-// default validation list ({loc, msg}), a plain string, or nothing useful at all.
+// input. Accepts Coldseam's own bodies ({detail, field, message, errors}), a `detail` that is
+// {field, message} or a list of them, FastAPI's default validation list ({loc, msg}), a plain
+// string, or nothing useful at all.
 
 function one(item) {
   if (typeof item === "string") return { field: "", message: item };
@@ -15,8 +16,17 @@ function one(item) {
   return { field: "", message: JSON.stringify(item) };
 }
 
-/** Normalised problems of an error response body with HTTP `status`. */
+/**
+ * Normalised problems of an error response body with HTTP `status`. Coldseam's own bodies are
+ * {detail: "<field>: <message>", field, message, errors?: [{field, message}]}.
+ */
 export function problems(body, status) {
+  if (body && typeof body === "object" && Array.isArray(body.errors) && body.errors.length) {
+    return body.errors.map(one);
+  }
+  if (body && typeof body === "object" && typeof body.message === "string" && body.message) {
+    return [one(body)];
+  }
   const detail = body && typeof body === "object" && "detail" in body ? body.detail : body;
   if (detail && typeof detail === "object" && Array.isArray(detail.errors)) {
     return detail.errors.map(one);

@@ -15,7 +15,7 @@ function psiRows(rows, psi) {
     push(rows, `flanking ${f.id} U`, f.u_value, "W/(m²·K)");
     push(rows, `flanking ${f.id} l`, f.length, "m");
     if (f.u_value !== undefined && f.length !== undefined) {
-      push(rows, `flanking ${f.id} U·l`, uTimesL(f), "W/(m·K)");
+      push(rows, `flanking ${f.id} U·l`, f.UL ?? uTimesL(f), "W/(m·K)");
     }
   }
 }
@@ -41,6 +41,14 @@ function meshRows(rows, mesh) {
   push(rows, "mesh converged", mesh.converged, "");
 }
 
+function couplingRows(rows, coupling) {
+  if (!coupling || !Array.isArray(coupling.environments)) return;
+  const ids = coupling.environments;
+  ids.forEach((a, i) => ids.forEach((b, j) => {
+    if (j > i) push(rows, `L ${a}-${b}`, coupling.matrix?.[i]?.[j], "W/(m·K)");
+  }));
+}
+
 /** Rows [quantity, value, unit] of the key figures of a model-v1 result. */
 export function keyFigureRows(result) {
   const rows = [];
@@ -51,8 +59,10 @@ export function keyFigureRows(result) {
   push(rows, "L2D", result.L2D, "W/(m·K)");
   psiRows(rows, result.psi);
   for (const [env, s] of Object.entries(result.surfaces || {})) {
-    push(rows, `theta_si,min ${env}`, s.min_temperature, "°C");
+    const symbol = s.side === "exterior" ? "theta_se,min" : "theta_si,min";
+    push(rows, `${symbol} ${env}`, s.min_temperature, "°C");
   }
+  couplingRows(rows, result.coupling_coefficients);
   condensationRows(rows, result.condensation);
   for (const [id, t] of Object.entries(result.probes || {})) push(rows, `probe ${id}`, t, "°C");
   meshRows(rows, result.mesh);

@@ -1,0 +1,86 @@
+// The Coldseam HTTP API (model-v1 contract). Every non-2xx answer becomes an ApiError carrying
+// the normalised problems [{field, message}] so views can put each one beside its input.
+
+import { problems } from "./lib/errors.js";
+
+export const BASE = "api/v1";
+
+export class ApiError extends Error {
+  constructor(status, problemList) {
+    super(problemList.map((p) => p.message).join("; "));
+    this.status = status;
+    this.problems = problemList;
+  }
+}
+
+async function readBody(response) {
+  const text = await response.text();
+  if (!text) return null;
+  try {
+    return JSON.parse(text);
+  } catch {
+    return text;
+  }
+}
+
+/** Fetch `path` under the API base; `json` or `form` is the body. Resolves {status, data}. */
+export async function call(path, { method = "GET", json, form, signal } = {}) {
+  const init = { method, signal, headers: { Accept: "application/json" } };
+  if (json !== undefined) {
+    init.body = JSON.stringify(json);
+    init.headers["Content-Type"] = "application/json";
+  } else if (form) init.body = form;
+  let response;
+  try {
+    response = await fetch(`${BASE}/${path}`, init);
+  } catch (err) {
+    if (err.name === "AbortError") throw err;
+    throw new ApiError(0, [{ field: "", message: "The Coldseam service cannot be reached." }]);
+  }
+  const data = await readBody(response);
+  if (!response.ok) throw new ApiError(response.status, problems(data, response.status));
+  return { status: response.status, data };
+}
+
+export const listTemplates = () => call("templates").then((r) => asList(r.data, "templates"));
+export const listMaterials = () => call("materials").then((r) => asList(r.data, "materials"));
+
+/** A list answer, either bare or wrapped as {key: [...]}. */
+export function asList(data, key) {
+  if (Array.isArray(data)) return data;
+  if (data && Array.isArray(data[key])) return data[key];
+  if (data && Array.isArray(data.items)) return data.items;
+  return [];
+}
+
+export function templateSection(id, params, signal) {
+  return call(`templates/${encodeURIComponent(id)}/section`, { method: "POST", json: { parameters: params }, signal })
+    .then((r) => r.data);
+}
+
+/** Start an evaluation without waiting; resolves the evaluation document (202 or 200). */
+export function startEvaluation(request) {
+  return call("evaluations?wait=false", { method: "POST", json: request }).then((r) => r.data);
+}
+
+export function getEvaluation(id, signal) {
+  return call(`evaluations/${encodeURIComponent(id)}`, { signal }).then((r) => r.data);
+}
+
+export function getField(id, signal) {
+  return call(`evaluations/${encodeURIComponent(id)}/field`, { signal }).then((r) => r.data);
+}
+
+/** POST a DXF file, with an optional layer map and drawing unit. */
+export function importDxf(file, layerMap, unit) {
+  const form = new FormData();
+  form.append("file", file, file.name);
+  if (layerMap) form.append("layer_map", JSON.stringify(layerMap));
+  if (unit) form.append("unit", unit);
+  return call("imports/dxf", { method: "POST", form }).then((r) => r.data);
+}
+
+/** Address of an evaluation's own resource (picture, report) for links. */
+export function evaluationUrl(id, tail) {
+  return `${BASE}/evaluations/${encodeURIComponent(id)}/${tail}`;
+}

@@ -1,0 +1,26 @@
+// Downloads of a result: the JSON document and a CSV of key figures made in the page, and the
+// server's picture and printable report.
+
+import { evaluationUrl } from "../api.js";
+import { blobLink, card, h } from "../dom.js";
+import { keyFigureRows, toCsv } from "../lib/figures.js";
+
+function fileStem(result) {
+  const name = (result.name || "evaluation").toLowerCase().replace(/[^a-z0-9]+/g, "-").replace(/^-|-$/g, "");
+  return `coldseam-${name || "evaluation"}-${String(result.id).slice(0, 8)}`;
+}
+
+/** The downloads card of `result`. */
+export function downloadsCard(result) {
+  const stem = fileStem(result);
+  const link = (label, tail, testid, extra = {}) =>
+    h("a", { class: "download", href: evaluationUrl(result.id, tail), testid, ...extra }, label);
+  return card("Downloads", h("ul", { class: "downloads" },
+    h("li", {}, blobLink("Result (JSON)", `${stem}.json`, "application/json",
+      JSON.stringify(result, null, 2), "download-json")),
+    h("li", {}, blobLink("Key figures (CSV)", `${stem}.csv`, "text/csv",
+      toCsv(keyFigureRows(result)), "download-csv")),
+    h("li", {}, link("Picture (SVG)", "picture.svg", "download-svg", { download: `${stem}.svg` })),
+    h("li", {}, link("Picture (PNG)", "picture.png", "download-png", { download: `${stem}.png` })),
+    h("li", {}, link("Printable report", "report", "download-report", { target: "_blank", rel: "noopener" }))));
+}

@@ -1,0 +1,143 @@
+// The temperature field of an evaluation: the nodal field rasterised through Coldseam's
+// thermal colour map, isotherms, piece outlines, exposed and adiabatic edges, the lowest
+// interior surface temperatures marked, a colour bar in °C and a readout under the cursor.
+
+import { h, replace, s } from "../dom.js";
+import { buildLocator, locate } from "../lib/barycentric.js";
+import { isolines, niceLevels } from "../lib/contour.js";
+import { thermalLut } from "../lib/colormap.js";
+import { fixed } from "../lib/format.js";
+import { rasterise } from "../lib/raster.js";
+import { boundsOf, linePath, ringPath, toScreen, toWorld } from "../lib/viewport.js";
+import { ADIABATIC, environmentColours } from "../palette.js";
+import { colourBar } from "./colourBar.js";
+import { attachPanZoom } from "./panzoom.js";
+import { scaleBar } from "./scalebar.js";
+
+/** A zoomable figure of `field` (FIELD_FORMAT of the engine). */
+export function fieldFigure(field) {
+  const model = prepare(field);
+  const canvas = h("canvas", { class: "field-canvas", testid: "field-canvas" });
+  const overlay = s("svg", { class: "field-overlay", role: "img", testid: "field-overlay",
+    "aria-label": `Temperature field, ${fixed(model.lo, 1)} to ${fixed(model.hi, 1)} °C` });
+  const surface = h("div", { class: "surface field-surface", tabindex: 0,
+    "aria-label": "Temperature field; + and − zoom, arrow keys pan, 0 fits" }, canvas, overlay);
+  const readout = h("p", { class: "readout", testid: "field-readout", "aria-live": "polite" },
+    "Point at the field to read the temperature.");
+  const zoom = attachPanZoom(surface, () => model.box, (view) => draw(canvas, overlay, surface, model, view));
+  surface.addEventListener("pointermove", (e) => hover(e, surface, readout, model, zoom.view()));
+  return h("figure", { class: "drawing field" },
+    h("div", { class: "drawing-head" }, h("span", { class: "drawing-title" }, "Temperature field, design run"), zoom.toolbar),
+    h("div", { class: "field-row" }, surface, colourBar(model.lo, model.hi, model.levels)),
+    readout, minLegend(model));
+}
+
+function prepare(field) {
+  const temps = field.temperature;
+  let lo = Infinity;
+  let hi = -Infinity;
+  for (const t of temps) { lo = Math.min(lo, t); hi = Math.max(hi, t); }
+  const levels = niceLevels(lo, hi, 10);
+  return {
+    field, lo, hi, levels,
+    lines: levels.map((level) => ({ level, lines: isolines(field.points, field.triangles, temps, level) })),
+    locator: buildLocator(field.points, field.triangles),
+    envColours: environmentColours((field.boundaries || []).map((b) => ({ id: b.environment, side: b.side }))),
+    box: boundsOf([field.points]),
+  };
+}
+
+function draw(canvas, overlay, surface, model, view) {
+  if (!view) return;
+  const width = surface.clientWidth;
+  const height = surface.clientHeight;
+  const dpr = window.devicePixelRatio || 1;
+  canvas.width = Math.round(width * dpr);
+  canvas.height = Math.round(height * dpr);
+  canvas.style.width = `${width}px`;
+  canvas.style.height = `${height}px`;
+  const ctx = canvas.getContext("2d");
+  const image = ctx.createImageData(canvas.width, canvas.height);
+  const { points, triangles, temperature } = model.field;
+  rasterise({ rgba: image.data, width: canvas.width, height: canvas.height,
+    view: { scale: view.scale * dpr, tx: view.tx * dpr, ty: view.ty * dpr },
+    points, triangles, values: temperature, lo: model.lo, hi: model.hi, lut: thermalLut() });
+  ctx.putImageData(image, 0, 0);
+  overlay.setAttribute("viewBox", `0 0 ${width} ${height}`);
+  replace(overlay, pieces(model.field, view), isothermPaths(model, view), edges(model, view),
+    minMarkers(model.field, view), scaleBar(view, "m", height));
+}
+
+function pieces(field, view) {
+  return s("g", { class: "pieces" }, (field.pieces || []).map((p) => s("path", {
+    d: [p.polygon, ...(p.holes || [])].map((ring) => ringPath(view, ring)).join(""), class: "piece" })));
+}
+
+function isothermPaths(model, view) {
+  const step = model.levels.length > 6 ? 2 : 1;
+  return s("g", { class: "isotherms" }, model.lines.map(({ level, lines }, k) => s("g", {},
+    lines.map((line) => s("path", { d: linePath(view, line), class: "isotherm" })),
+    k % step === 0 ? isothermLabel(level, lines, view) : null)));
+}
+
+function isothermLabel(level, lines, view) {
+  const longest = lines.reduce((a, b) => (b.length > (a?.length || 0) ? b : a), null);
+  if (!longest || longest.length < 4) return null;
+  const [x, y] = toScreen(view, ...longest[Math.floor(longest.length / 2)]);
+  return s("text", { x, y: y - 3, class: "isotherm-label", "text-anchor": "middle" }, `${fixed(level, 1)}°`);
+}
+
+function edges(model, view) {
+  const exposed = (model.field.boundaries || []).flatMap((b) => b.segments.map((seg) =>
+    s("path", { d: linePath(view, seg), class: "edge-exposed", stroke: model.envColours.get(b.environment) })));
+  const adiabatic = (model.field.adiabatic || []).map((seg) =>
+    s("path", { d: linePath(view, seg), class: "edge-adiabatic", stroke: ADIABATIC }));
+  return s("g", {}, adiabatic, exposed);
+}
+
+/** The lowest interior surface temperatures: design run and condensation run. */
+function interiorMinima(field) {
+  const interior = new Set((field.boundaries || []).filter((b) => b.side === "interior").map((b) => b.environment));
+  const out = Object.entries(field.min_surface || {}).filter(([env]) => interior.has(env) || !interior.size)
+    .map(([env, m]) => ({ kind: "design", env, ...m }));
+  if (field.condensation_min) out.push({ kind: "condensation", env: "", ...field.condensation_min });
+  return out;
+}
+
+function minMarkers(field, view) {
+  return s("g", { class: "min-markers" }, interiorMinima(field).map((m) => {
+    const [x, y] = toScreen(view, ...m.at);
+    const design = m.kind === "design";
+    const dy = design ? -14 : 22;
+    return s("g", { class: `min-marker ${m.kind}` },
+      design ? s("circle", { cx: x, cy: y, r: 6 }) : s("rect", { x: x - 5, y: y - 5, width: 10, height: 10 }),
+      s("text", { x: x + 10, y: y + dy, class: "min-label", testid: design ? "min-surface-label" : "condensation-min-label" },
+        design ? `θsi,min ${fixed(m.temperature, 2)} °C` : `fRsi run ${fixed(m.temperature, 2)} °C`));
+  }));
+}
+
+function minLegend(model) {
+  const items = interiorMinima(model.field).map((m) => h("li", {},
+    h("span", { class: `marker-key ${m.kind}`, "aria-hidden": "true" }),
+    m.kind === "design" ? `Lowest surface temperature${m.env ? ` (${m.env})` : ""}, design run: ${fixed(m.temperature, 2)} °C`
+      : `Lowest interior surface temperature with the condensation Rsi: ${fixed(m.temperature, 2)} °C`));
+  return h("figcaption", { class: "legend" }, h("ul", { class: "legend-list" }, items,
+    h("li", {}, h("span", { class: "swatch swatch-iso", "aria-hidden": "true" }),
+      `isotherms every ${model.levels.length > 1 ? fixed(model.levels[1] - model.levels[0], 1) : "—"} K`)));
+}
+
+function hover(event, surface, readout, model, view) {
+  if (!view) return;
+  const rect = surface.getBoundingClientRect();
+  const [x, y] = toWorld(view, event.clientX - rect.left, event.clientY - rect.top);
+  const hit = locate(model.locator, x, y);
+  if (!hit) { replace(readout, "Outside the section."); return; }
+  const tri = model.field.triangles[hit.triangle];
+  const theta = hit.weights.reduce((sum, w, k) => sum + w * model.field.temperature[tri[k]], 0);
+  const mat = model.field.materials?.[model.field.material?.[hit.triangle]];
+  const flux = model.field.heat_flux?.[hit.triangle];
+  replace(readout, h("strong", {}, `θ ${fixed(theta, 2)} °C`),
+    ` at (${fixed(x * 1000, 0)}, ${fixed(y * 1000, 0)}) mm`,
+    mat ? ` · ${mat.id}, λ ${mat.conductivity[0] === mat.conductivity[1] ? mat.conductivity[0] : mat.conductivity.join(" / ")} W/(m·K)` : "",
+    Number.isFinite(flux) ? ` · |q| ${fixed(flux, 1)} W/m²` : "");
+}

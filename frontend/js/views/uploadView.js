@@ -1,0 +1,138 @@
+// Flow 2: drop a section JSON (a bare section or a whole evaluation request) or a DXF drawing;
+// a DXF goes through the layer-mapping step; then preview and evaluate.
+
+import { ApiError, importDxf, listMaterials } from "../api.js";
+import { h, replace } from "../dom.js";
+import { assessPanel } from "./assess.js";
+import { mappingTable } from "./dxfMapping.js";
+import { placeProblems, problemList, showProblems } from "./problems.js";
+import { sectionPreview } from "./sectionPreview.js";
+
+/** Render the upload flow into `root`. */
+export function uploadView(root) {
+  const state = { request: null, materials: null };
+  const stage = h("div", { class: "stage" }, h("p", { class: "placeholder" },
+    "The section appears here once a file is read."));
+  const problems = problemList();
+  const mapping = h("div", { class: "mapping" });
+  const assess = assessPanel(() => state.request);
+  assess.setReady(false);
+  const show = (request, extra = []) => {
+    state.request = request;
+    replace(stage, safePreview(request.section, state.materials || []), extra);
+    assess.setReady(true);
+  };
+  const ctx = { state, stage, problems, mapping, assess, show };
+  const fileInput = h("input", { type: "file", id: "section-file", accept: ".json,.dxf,application/json",
+    testid: "upload-input", class: "file-input" });
+  fileInput.addEventListener("change", () => fileInput.files[0] && readFile(fileInput.files[0], ctx));
+  const zone = dropZone(fileInput, (file) => readFile(file, ctx));
+  replace(root, h("div", { class: "workspace" }, h("div", { class: "panel" },
+    h("section", { class: "card" }, h("h2", { class: "card-title" }, "Section file"), zone, problems),
+    mapping, assess.el), stage));
+  return () => {};
+}
+
+function dropZone(fileInput, onFile) {
+  const zone = h("div", { class: "dropzone", testid: "dropzone" },
+    h("p", {}, "Drop a section JSON or a DXF drawing here"),
+    h("label", { for: "section-file", class: "button-like" }, "Choose a file…"), fileInput,
+    h("p", { class: "hint" }, "JSON: a section model or a whole evaluation request (model v1). DXF: closed shapes per material layer, lines along exposed surfaces per environment layer."));
+  zone.addEventListener("dragover", (e) => { e.preventDefault(); zone.classList.add("over"); });
+  zone.addEventListener("dragleave", () => zone.classList.remove("over"));
+  zone.addEventListener("drop", (e) => {
+    e.preventDefault();
+    zone.classList.remove("over");
+    if (e.dataTransfer.files[0]) onFile(e.dataTransfer.files[0]);
+  });
+  return zone;
+}
+
+function safePreview(section, library) {
+  try {
+    return sectionPreview(section, library);
+  } catch (err) {
+    return h("p", { class: "placeholder" }, `This section cannot be drawn here (${err.message}); `
+      + "the service will say what is wrong when it is evaluated.");
+  }
+}
+
+async function readFile(file, ctx) {
+  ctx.state.request = null;
+  ctx.assess.setReady(false);
+  showProblems(ctx.problems, []);
+  replace(ctx.mapping);
+  ctx.state.materials ??= await listMaterials().catch(() => []);
+  if (/\.dxf$/i.test(file.name)) return inspectDxf(file, ctx);
+  let data;
+  try {
+    data = JSON.parse(await file.text());
+  } catch (err) {
+    showProblems(ctx.problems, [{ field: file.name, message: `This file is not valid JSON (${err.message}).` }]);
+    return;
+  }
+  const request = asRequest(data);
+  if (!request) {
+    showProblems(ctx.problems, [{ field: file.name, message: "This JSON holds neither a section (with \"regions\") nor an evaluation request (with \"section\")." }]);
+    return;
+  }
+  ctx.show(request);
+}
+
+/** An evaluation request from uploaded JSON: a request as is, a bare section wrapped. */
+function asRequest(data) {
+  if (!data || typeof data !== "object" || Array.isArray(data)) return null;
+  if (data.section && typeof data.section === "object") return data;
+  if (Array.isArray(data.regions)) return { section: data };
+  return null;
+}
+
+async function inspectDxf(file, ctx) {
+  try {
+    const answer = await importDxf(file);
+    if (answer.section) return ctx.show({ section: answer.section }, warningsBlock(answer.warnings));
+    mappingStep(file, answer, ctx);
+  } catch (err) {
+    if (!(err instanceof ApiError)) throw err;
+    showProblems(ctx.problems, err.problems);
+  }
+}
+
+function mappingStep(file, answer, ctx) {
+  const table = mappingTable(answer.layers || [], ctx.state.materials);
+  const unit = h("select", { id: "dxf-unit", testid: "dxf-unit" },
+    h("option", { value: "" }, "— choose —"), h("option", { value: "mm" }, "millimetres (mm)"),
+    h("option", { value: "m" }, "metres (m)"));
+  unit.value = answer.unit || "";
+  const unitError = h("p", { class: "field-error", hidden: true, role: "alert", testid: "field-error", "data-field": "unit" });
+  const list = problemList();
+  const button = h("button", { type: "button", class: "secondary", testid: "build-section" }, "Build section");
+  button.addEventListener("click", () => buildSection(file, table, unit, unitError, list, ctx));
+  replace(ctx.mapping, h("section", { class: "card" }, h("h2", { class: "card-title" }, "Layers"),
+    h("p", { class: "hint" }, `Say what each layer of ${file.name} stands for.`),
+    h("div", { class: "field" }, h("label", { for: "dxf-unit" },
+      answer.unit ? `Drawing unit (the file says ${answer.unit})` : "Drawing unit (the file does not say)"), unit, unitError),
+    table.el, h("div", { class: "actions" }, button), list));
+}
+
+async function buildSection(file, table, unit, unitError, list, ctx) {
+  const { layerMap, bad } = table.read();
+  unitError.hidden = Boolean(unit.value);
+  replace(unitError, unit.value ? "" : "Say whether the drawing is in millimetres or metres.");
+  if (bad || !unit.value) return;
+  showProblems(list, []);
+  try {
+    const answer = await importDxf(file, layerMap, unit.value);
+    ctx.show({ section: answer.section }, warningsBlock(answer.warnings));
+  } catch (err) {
+    if (!(err instanceof ApiError)) throw err;
+    const unitField = { name: "unit", showError: (m) => { unitError.hidden = !m; replace(unitError, m || ""); } };
+    showProblems(list, placeProblems(err.problems, [...table.fields, unitField]));
+  }
+}
+
+function warningsBlock(warnings) {
+  if (!warnings || !warnings.length) return [];
+  return h("section", { class: "card warnings" }, h("h2", { class: "card-title" }, "Import warnings"),
+    h("ul", { testid: "import-warnings" }, warnings.map((w) => h("li", {}, typeof w === "string" ? w : w.message || JSON.stringify(w)))));
+}

@@ -1,0 +1,50 @@
+import { test } from "node:test";
+import assert from "node:assert/strict";
+import { choiceProblems, guessMaterial, guessRole, guessSide, layerContent, ruleFor, slug } from "../js/lib/layers.js";
+
+test("closed shapes suggest a material, open paths an environment", () => {
+  assert.equal(guessRole({ closed_shapes: 2, open_paths: 1 }), "material");
+  assert.equal(guessRole({ closed_shapes: 0, open_paths: 3 }), "environment");
+  assert.equal(guessRole({ closed_shapes: 0, open_paths: 0 }), "ignore");
+});
+
+test("side from the layer name", () => {
+  assert.equal(guessSide("INSIDE"), "interior");
+  assert.equal(guessSide("Env-Interior"), "interior");
+  assert.equal(guessSide("OUTSIDE"), "exterior");
+  assert.equal(guessSide("ext_air"), "exterior");
+  assert.equal(guessSide("A", 1), "exterior");
+});
+
+test("library guesses and ids", () => {
+  const lib = [{ id: "concrete_2000" }, { id: "eps" }, { id: "steel" }];
+  assert.equal(guessMaterial("EPS", lib), "eps");
+  assert.equal(guessMaterial("Concrete", lib), "concrete_2000");
+  assert.equal(guessMaterial("Glass", lib), null);
+  assert.equal(slug(" Wall / Brick 1 "), "wall_brick_1");
+  assert.equal(slug("--"), "layer");
+});
+
+test("rules follow the layer-map format of the import endpoint", () => {
+  assert.deepEqual(ruleFor({ role: "ignore" }), { ignore: true });
+  assert.deepEqual(ruleFor({ role: "material", material: "eps", library: "", conductivity: "0.035" }),
+    { material: "eps", conductivity: 0.035 });
+  assert.deepEqual(ruleFor({ role: "material", material: "c", library: "concrete_2000", order: "2" }),
+    { material: "c", library: "concrete_2000", order: 2 });
+  assert.deepEqual(ruleFor({ role: "environment", environment: "in", temperature: "20", side: "interior",
+    surface_resistance: "0.13" }), { environment: "in", temperature: 20, side: "interior", surface_resistance: 0.13 });
+});
+
+test("incomplete rows are caught before sending", () => {
+  assert.deepEqual(Object.keys(choiceProblems({ role: "material", material: "", conductivity: "" })),
+    ["material", "conductivity"]);
+  assert.deepEqual(choiceProblems({ role: "material", material: "x", library: "eps" }), {});
+  assert.deepEqual(Object.keys(choiceProblems({ role: "environment", environment: "e", temperature: "",
+    surface_resistance: "-1" })), ["temperature", "surface_resistance"]);
+  assert.deepEqual(choiceProblems({ role: "ignore" }), {});
+});
+
+test("layer content in words", () => {
+  assert.equal(layerContent({ closed_shapes: 1, open_paths: 2 }), "1 closed shape, 2 open paths");
+  assert.equal(layerContent({}), "nothing usable");
+});
