@@ -1,0 +1,240 @@
+"""Model-space entities of a DXF drawing as flat 2D point lists ("shapes").
+
+Blocks (INSERT) are exploded with ezdxf, nested up to a depth limit; entities on layer "0"
+inside a block take the layer of the block reference, as in CAD. Arcs, bulges, circles,
+ellipses and splines are tessellated with a chord error (sagitta) given in drawing units.
+Entity and vertex counts are capped: a drawing over the limits raises LimitExceeded.
+"""
+
+from __future__ import annotations
+
+import logging
+import math
+from collections.abc import Iterator
+from dataclasses import dataclass, field
+
+import ezdxf.path
+from ezdxf.entities import DXFGraphic, Insert
+from ezdxf.lldxf.const import DXFError
+from ezdxf.math import OCS, Vec3
+
+from coldseam.errors import LimitExceeded
+
+logger = logging.getLogger(__name__)
+
+Point = tuple[float, float]
+
+#: Entity types whose geometry becomes a shape; any other type is counted and skipped.
+GEOMETRY_TYPES = frozenset(
+    {"LINE", "ARC", "CIRCLE", "ELLIPSE", "SPLINE", "LWPOLYLINE", "POLYLINE", "HATCH"}
+)
+
+
+@dataclass(frozen=True)
+class DxfLimits:
+    """Upper bounds on what one drawing may hold, after exploding blocks."""
+
+    max_entities: int = 20_000
+    max_vertices: int = 50_000
+    max_block_depth: int = 8
+
+
+@dataclass(frozen=True)
+class Shape:
+    """One tessellated piece of geometry on one layer, in drawing units.
+
+    ``closed`` shapes list each vertex once (the closing edge is implicit); ``index`` is the
+    position in drawing (redraw) order, which decides precedence between regions.
+    """
+
+    layer: str
+    kind: str
+    points: tuple[Point, ...]
+    closed: bool
+    index: int
+
+
+@dataclass
+class _Budget:
+    limits: DxfLimits
+    entities: int = 0
+    vertices: int = 0
+    skipped: dict[tuple[str, str], int] = field(default_factory=dict)
+
+    def count_entity(self, n: int = 1) -> None:
+        self.entities += n
+        if self.entities > self.limits.max_entities:
+            raise LimitExceeded(
+                f"the drawing holds more than {self.limits.max_entities} entities (after "
+                "exploding blocks); purge unused geometry or export only the junction detail",
+                "/file",
+            )
+
+    def count_vertices(self, n: int) -> None:
+        self.vertices += n
+        if self.vertices > self.limits.max_vertices:
+            raise LimitExceeded(
+                f"the drawing tessellates to more than {self.limits.max_vertices} vertices; "
+                "simplify curves or export only the junction detail",
+                "/file",
+            )
+
+
+def clean_text(text: str) -> str:
+    """A name with undecodable bytes (kept as surrogates by ezdxf) replaced by '?'."""
+    return text.encode("utf-8", "replace").decode("utf-8")
+
+
+def iter_layer_entities(
+    entities: Iterator[DXFGraphic], budget: _Budget, layer: str | None = None, depth: int = 0
+) -> Iterator[tuple[str, DXFGraphic]]:
+    """(effective layer, entity) in drawing order, with block references exploded."""
+    for entity in entities:
+        budget.count_entity()
+        own = _layer_of(entity)
+        effective = layer if (layer is not None and own == "0") else own
+        if isinstance(entity, Insert):
+            yield from _explode(entity, budget, effective, depth)
+        else:
+            yield effective, entity
+
+
+def _layer_of(entity: DXFGraphic) -> str:
+    try:
+        return clean_text(entity.dxf.get("layer", "0"))
+    except DXFError:  # an entity of an unknown type has no layer attribute
+        return "0"
+
+
+def _explode(insert: Insert, budget: _Budget, layer: str, depth: int) -> Iterator[tuple[str, DXFGraphic]]:
+    if depth >= budget.limits.max_block_depth:
+        raise LimitExceeded(
+            f"block '{clean_text(insert.dxf.name)}' is nested more than "
+            f"{budget.limits.max_block_depth} levels deep (or refers to itself)",
+            "/file",
+        )
+    block = insert.block()
+    size = len(block) if block is not None else 0
+    if insert.mcount * size > budget.limits.max_entities:
+        budget.count_entity(insert.mcount * size)  # raises: refuse before exploding
+    for reference in insert.multi_insert():
+        virtual = reference.virtual_entities(redraw_order=True)
+        yield from iter_layer_entities(virtual, budget, layer, depth + 1)
+
+
+def shapes_of(entity: DXFGraphic, layer: str, index: int, chord: float, budget: _Budget) -> list[Shape]:
+    """The shapes of one entity; an empty list for an entity that carries no geometry."""
+    kind = entity.dxftype()
+    if kind not in GEOMETRY_TYPES or not _in_drawing_plane(entity):
+        key = (layer, kind if kind not in GEOMETRY_TYPES else f"{kind} out of the drawing plane")
+        budget.skipped[key] = budget.skipped.get(key, 0) + 1
+        return []
+    shapes = [
+        Shape(layer, kind, points, closed, index)
+        for points, closed in _flatten(entity, kind, chord)
+        if len(points) >= 2
+    ]
+    if not all(math.isfinite(c) for s in shapes for p in s.points for c in p):
+        raise ValueError("a coordinate is not a finite number")
+    budget.count_vertices(sum(len(s.points) for s in shapes))
+    return shapes
+
+
+def _in_drawing_plane(entity: DXFGraphic) -> bool:
+    extrusion = entity.dxf.get("extrusion", None)
+    if extrusion is None:
+        return True
+    x, y, z = Vec3(extrusion)
+    return abs(x) < 1e-9 and abs(y) < 1e-9 and abs(z) > 0
+
+
+def _flatten(entity: DXFGraphic, kind: str, chord: float) -> list[tuple[tuple[Point, ...], bool]]:
+    if kind == "LINE":
+        return [(_xy([entity.dxf.start, entity.dxf.end]), False)]
+    if kind == "ARC":
+        sagitta = _sagitta(chord, entity.dxf.radius)
+        return [(_xy(entity.flattening(sagitta)), False)]
+    if kind == "CIRCLE":
+        sagitta = _sagitta(chord, entity.dxf.radius)
+        return [(_xy(entity.flattening(sagitta))[:-1], True)]
+    if kind in ("ELLIPSE", "SPLINE"):
+        return [_closed_or_open(_xy(entity.flattening(chord, segments=16)))]
+    if kind == "LWPOLYLINE":
+        vertices = [(x, y, b) for x, y, b in entity.get_points("xyb")]
+        return [_polyline(vertices, entity.closed, entity.ocs(), entity.dxf.elevation, chord)]
+    if kind == "POLYLINE":
+        return _old_polyline(entity, chord)
+    return [_closed_or_open(_xy(path.flattening(chord, segments=16)))
+            for path in ezdxf.path.from_hatch(entity)]
+
+
+def _old_polyline(entity: DXFGraphic, chord: float) -> list[tuple[tuple[Point, ...], bool]]:
+    if entity.is_2d_polyline:
+        vertices = [(v.dxf.location.x, v.dxf.location.y, v.dxf.get("bulge", 0.0))
+                    for v in entity.vertices]
+        elevation = Vec3(entity.dxf.get("elevation", (0, 0, 0))).z
+        return [_polyline(vertices, entity.is_closed, entity.ocs(), elevation, chord)]
+    if entity.is_3d_polyline:
+        points = _xy(entity.points())
+        return [(points, True) if entity.is_closed else _closed_or_open(points)]
+    return []  # polyface and polygon meshes carry no 2D outline
+
+
+def _polyline(vertices: list[tuple[float, float, float]], closed: bool, ocs: OCS,
+              elevation: float, chord: float) -> tuple[tuple[Point, ...], bool]:
+    """Vertices with DXF bulges (tan of a quarter of the arc angle, + = counter-clockwise)."""
+    points: list[Point] = []
+    n = len(vertices)
+    for i in range(n if closed else n - 1):
+        x0, y0, bulge = vertices[i]
+        x1, y1, _ = vertices[(i + 1) % n]
+        points.append((x0, y0))
+        if abs(bulge) > 1e-12:
+            points.extend(bulge_points((x0, y0), (x1, y1), bulge, chord))
+    if not closed and n:
+        points.append(vertices[-1][:2])
+    wcs = _xy(ocs.points_to_wcs(Vec3(x, y, elevation) for x, y in points))
+    return (wcs, True) if closed else _closed_or_open(wcs)
+
+
+def bulge_points(start: Point, end: Point, bulge: float, chord: float) -> list[Point]:
+    """Interior points of the arc from start to end with the given bulge.
+
+    >>> [(round(x, 9) + 0.0, round(y, 9)) for x, y in bulge_points((-1, 0), (1, 0), 1.0, 1.0)]
+    [(0.0, -1.0)]
+    """
+    dx, dy = end[0] - start[0], end[1] - start[1]
+    length = math.hypot(dx, dy)
+    if length == 0:
+        return []
+    sweep = 4 * math.atan(bulge)
+    offset = length * (1 - bulge * bulge) / (4 * bulge)  # centre from mid-chord, to the left
+    cx = (start[0] + end[0]) / 2 - dy / length * offset
+    cy = (start[1] + end[1]) / 2 + dx / length * offset
+    radius = math.hypot(start[0] - cx, start[1] - cy)
+    steps = max(1, math.ceil(abs(sweep) / _step_angle(radius, _sagitta(chord, radius))))
+    a0 = math.atan2(start[1] - cy, start[0] - cx)
+    return [(cx + radius * math.cos(a0 + sweep * k / steps),
+             cy + radius * math.sin(a0 + sweep * k / steps)) for k in range(1, steps)]
+
+
+def _sagitta(chord: float, radius: float) -> float:
+    """Chord error for an arc: the absolute tolerance, relaxed to 2e-4 of large radii."""
+    return max(chord, 2e-4 * radius)
+
+
+def _step_angle(radius: float, sagitta: float) -> float:
+    if sagitta >= radius:
+        return math.pi / 2
+    return min(math.pi / 2, 2 * math.acos(1 - sagitta / radius))
+
+
+def _closed_or_open(points: tuple[Point, ...]) -> tuple[tuple[Point, ...], bool]:
+    """A point list whose last point repeats the first exactly is a closed shape."""
+    if len(points) > 3 and points[0] == points[-1]:
+        return points[:-1], True
+    return points, False
+
+
+def _xy(vertices) -> tuple[Point, ...]:
+    return tuple((float(v[0]), float(v[1])) for v in vertices)
