@@ -1,0 +1,199 @@
+"""``/api/v1/materials`` and ``/api/v1/templates``: the materials library and the parametric
+junction templates (``coldseam.materials``, ``coldseam.templates``).
+
+``GET /templates/{id}/value`` is made for spreadsheets: it answers one plain-text number (or
+``format=csv``: a header line and a value line), and its errors are plain ``error: ...`` text.
+"""
+
+from __future__ import annotations
+
+import asyncio
+import dataclasses
+import json
+from typing import Annotated, Any, Literal
+
+from fastapi import APIRouter, HTTPException, Query, Request
+from fastapi.concurrency import run_in_threadpool
+from fastapi.responses import JSONResponse, PlainTextResponse, Response
+
+from coldseam.api.deps import EvaluationsDep, OwnerDep, SettingsDep
+from coldseam.api.errors import raise_failure, request_id_of
+from coldseam.api.evaluations import (
+    ERRORS,
+    RESULT,
+    create_from_request,
+    read_text,
+    stored_response,
+)
+from coldseam.api.jobs import Evaluations
+from coldseam.api.limits import check_limits
+from coldseam.errors import InvalidSection
+from coldseam.schema.evaluation import EvaluationRequest, parse_request
+
+router = APIRouter(tags=["templates and materials"])
+
+#: Where each quantity of the value endpoint is in a result document.
+QUANTITIES = {
+    "psi": ("psi", "value"),
+    "L2D": ("L2D",),
+    "fRsi": ("condensation", "fRsi"),
+    "fRsi_critical": ("condensation", "fRsi_critical"),
+    "theta_si_min": ("condensation", "min_temperature"),
+}
+RESERVED = {"quantity", "format"}
+PARAMETERS_BODY = {
+    "required": False,
+    "content": {"application/json": {
+        "schema": {"type": "object", "properties": {"parameters": {"type": "object"}}},
+        "examples": {"defaults": {"summary": "The template's defaults", "value": {}},
+                     "thicker": {"summary": "Some parameters set",
+                                 "value": {"parameters": {"insulation_thickness": 160}}}},
+    }},
+}
+
+
+@router.get("/materials")
+def list_materials() -> JSONResponse:
+    """The materials library: design λ in W/(m·K) with the source of each value."""
+    from coldseam.materials import load_library
+
+    return JSONResponse({"materials": [plain(m) for m in load_library().values()]})
+
+
+@router.get("/templates")
+def list_templates() -> JSONResponse:
+    """The junction templates and their parameters (lengths in mm)."""
+    return JSONResponse({"templates": [plain(t) for t in templates().list_templates()]})
+
+
+@router.post("/templates/{template_id}/section", responses=ERRORS,
+             openapi_extra={"requestBody": PARAMETERS_BODY})
+async def template_section(template_id: str, request: Request) -> JSONResponse:
+    """The evaluation request (section, ψ and condensation blocks) a template builds."""
+    parameters = await read_parameters(request)
+    built = await run_in_threadpool(build, template_id, parameters)
+    return JSONResponse(built)
+
+
+@router.post("/templates/{template_id}/evaluations", responses={200: RESULT, **ERRORS},
+             openapi_extra={"requestBody": PARAMETERS_BODY})
+async def template_evaluation(template_id: str, request: Request,
+                              evaluations: EvaluationsDep, settings: SettingsDep,
+                              owner: OwnerDep, wait: bool = True) -> Response:
+    """Build a template's section and evaluate it, as ``POST /api/v1/evaluations``."""
+    parameters = await read_parameters(request)
+    built = await run_in_threadpool(build, template_id, parameters)
+    parsed = await run_in_threadpool(checked_request, built, settings)
+    return await create_from_request(request, evaluations, owner, parsed, json.dumps(built),
+                                     wait)
+
+
+@router.get("/templates/{template_id}/value", response_class=PlainTextResponse,
+            responses={200: {"content": {"text/plain": {"example": "0.0613"}}}})
+async def template_value(template_id: str, request: Request, evaluations: EvaluationsDep,
+                         settings: SettingsDep, owner: OwnerDep,
+                         quantity: Annotated[str, Query(examples=["psi"])] = "psi",
+                         format: Annotated[Literal["text", "csv"], Query()] = "text",
+                         ) -> PlainTextResponse:
+    """One figure of a template evaluation as plain text; other query parameters are the
+    template's (e.g. ``?quantity=psi&insulation_thickness=160``)."""
+    if quantity not in QUANTITIES:
+        raise InvalidSection(f"quantity must be one of {', '.join(QUANTITIES)}", "/quantity")
+    parameters = {k: query_value(v) for k, v in request.query_params.items()
+                  if k not in RESERVED}
+    built = await run_in_threadpool(build, template_id, parameters)
+    parsed = await run_in_threadpool(checked_request, built, settings)
+    result = await evaluated(evaluations, owner, parsed, json.dumps(built), request)
+    value = pick(result, quantity)
+    if format == "csv":
+        names = list(parameters)
+        header = ",".join([*names, quantity])
+        line = ",".join([*(str(parameters[n]) for n in names), number(value)])
+        return PlainTextResponse(f"{header}\n{line}\n", media_type="text/csv")
+    return PlainTextResponse(number(value) + "\n")
+
+
+def templates() -> Any:
+    import coldseam.templates as module
+
+    if not hasattr(module, "list_templates") or not hasattr(module, "build"):
+        raise HTTPException(501, "this installation has no junction templates")
+    return module
+
+
+def build(template_id: str, parameters: dict[str, Any]) -> dict[str, Any]:
+    """The request dict a template builds; 404 for an unknown template."""
+    module = templates()
+    known = [plain(t)["id"] for t in module.list_templates()]
+    if template_id not in known:
+        raise HTTPException(404, f"no template '{template_id}' (templates: "
+                            f"{', '.join(known)})")
+    built = plain(module.build(template_id, parameters))
+    return built if "section" in built else {"section": built}
+
+
+def checked_request(built: dict[str, Any], settings: Any) -> EvaluationRequest:
+    parsed = parse_request(built)
+    check_limits(parsed, settings)
+    return parsed
+
+
+async def read_parameters(request: Request) -> dict[str, Any]:
+    """The ``parameters`` object of a JSON body; an empty or missing body means defaults."""
+    text = await read_text(request)
+    if not text.strip():
+        return {}
+    try:
+        body = json.loads(text)
+    except json.JSONDecodeError as exc:
+        raise InvalidSection(f"the body is not valid JSON: {exc.msg} at line {exc.lineno} "
+                             f"column {exc.colno}") from None
+    if not isinstance(body, dict) or not isinstance(body.get("parameters", {}), dict):
+        raise InvalidSection("the body must be {\"parameters\": {name: value, ...}}",
+                             "/parameters")
+    return body.get("parameters", {})
+
+
+async def evaluated(evaluations: Evaluations, owner: str, parsed: EvaluationRequest,
+                    text: str, request: Request) -> dict[str, Any]:
+    """The stored or newly computed result of ``parsed`` (typed errors raised as such)."""
+    submitted = await run_in_threadpool(evaluations.submit, owner, parsed, text,
+                                        request_id_of(request))
+    if submitted.done is not None:
+        outcome = await asyncio.wrap_future(submitted.done)
+        if not outcome.ok:
+            raise_failure(outcome.error)
+    response = await stored_response(evaluations, owner, submitted.id, request)
+    return json.loads(response.body)
+
+
+def pick(result: dict[str, Any], quantity: str) -> float:
+    value: Any = result
+    for part in QUANTITIES[quantity]:
+        value = value.get(part) if isinstance(value, dict) else None
+    if not isinstance(value, int | float):
+        raise InvalidSection(f"this evaluation has no {quantity} (is the block for it "
+                             "missing from the template's request?)", "/quantity")
+    return float(value)
+
+
+def number(value: float) -> str:
+    return f"{value:.6g}"
+
+
+def query_value(text: str) -> float | str:
+    try:
+        return float(text)
+    except ValueError:
+        return text
+
+
+def plain(item: Any) -> Any:
+    """A library or template object as JSON-able data."""
+    if hasattr(item, "as_dict"):
+        return item.as_dict()
+    if hasattr(item, "model_dump"):
+        return item.model_dump(mode="json")
+    if dataclasses.is_dataclass(item) and not isinstance(item, type):
+        return dataclasses.asdict(item)
+    return item

@@ -1,0 +1,43 @@
+"""Typed dependencies of the routes."""
+
+from __future__ import annotations
+
+from typing import Annotated
+
+from fastapi import Depends, HTTPException, Request
+from fastapi.security import HTTPAuthorizationCredentials, HTTPBearer
+
+from coldseam.api.auth import OPEN_OWNER, KeyRing
+from coldseam.api.jobs import Evaluations
+from coldseam.settings import Settings, get_settings
+
+SettingsDep = Annotated[Settings, Depends(get_settings)]
+
+_bearer = HTTPBearer(auto_error=False, description="An API key of this server, when it "
+                     "has any (COLDSEAM_API_KEYS); an open server needs none.")
+
+
+def get_evaluations(request: Request) -> Evaluations:
+    return request.app.state.evaluations
+
+
+def get_owner(request: Request,
+              credentials: Annotated[HTTPAuthorizationCredentials | None,
+                                     Depends(_bearer)]) -> str:
+    """The owner tag of the caller's key (401 without an accepted key), or the open owner."""
+    ring: KeyRing = request.app.state.keys
+    if ring.open:
+        return OPEN_OWNER
+    challenge = {"WWW-Authenticate": "Bearer"}
+    if credentials is None or credentials.scheme.lower() != "bearer":
+        raise HTTPException(401, "this server needs an API key: send the header "
+                            "'Authorization: Bearer <key>'", headers=challenge)
+    owner = ring.owner_of(credentials.credentials)
+    if owner is None:
+        raise HTTPException(401, "the API key is not accepted by this server",
+                            headers=challenge)
+    return owner
+
+
+EvaluationsDep = Annotated[Evaluations, Depends(get_evaluations)]
+OwnerDep = Annotated[str, Depends(get_owner)]

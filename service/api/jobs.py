@@ -1,0 +1,110 @@
+"""Evaluations as the API sees them: the store, the worker pool and the live progress of the
+evaluations in flight, tied together (no FastAPI here)."""
+
+from __future__ import annotations
+
+import logging
+import threading
+from concurrent.futures import Future
+from dataclasses import dataclass, field
+
+from coldseam.api.pool import Job, Outcome, QueueFull, WorkerPool, failure
+from coldseam.api.store import Record, Store, storage_key
+from coldseam.schema.evaluation import EvaluationRequest, request_digest
+
+log = logging.getLogger(__name__)
+
+
+@dataclass
+class Live:
+    """An evaluation that is queued or running in this server process."""
+
+    status: str = "queued"
+    stage: str | None = None
+    progress: float = 0.0
+    done: Future = field(default_factory=Future)
+
+
+@dataclass(frozen=True)
+class Submitted:
+    """What `Evaluations.submit` did: ``done`` is None when a stored result was found."""
+
+    id: str
+    key: str
+    done: Future | None
+
+
+class Evaluations:
+    """Submit, look up and list evaluations, each scoped to its owner."""
+
+    def __init__(self, store: Store, pool: WorkerPool) -> None:
+        self.store, self.pool = store, pool
+        self._live: dict[str, Live] = {}
+        self._lock = threading.Lock()
+
+    def submit(self, owner: str, request: EvaluationRequest, request_text: str,
+               request_id: str = "") -> Submitted:
+        """Start evaluating ``request`` unless its result is stored or it is in flight.
+
+        Raises QueueFull when no worker is free and the queue is full.
+        """
+        evaluation_id = request_digest(request)
+        key = storage_key(owner, evaluation_id)
+        with self._lock:
+            if key in self._live:
+                return Submitted(evaluation_id, key, self._live[key].done)
+            record = self.store.get(key)
+            if record is not None and record.status == "done":
+                return Submitted(evaluation_id, key, None)
+            live = self._live[key] = Live()
+        self.store.queue(key, evaluation_id, owner, request.section.name, request_text)
+        job = Job(key=key, request=request.model_dump(mode="json"), label=request_id,
+                  on_start=self._started, on_progress=self._progressed,
+                  on_finish=self._finished)
+        try:
+            self.pool.submit(job)
+        except QueueFull:
+            self._forget(key)
+            raise
+        log.info("evaluation %s queued (request %s)", evaluation_id, request_id)
+        return Submitted(evaluation_id, key, live.done)
+
+    def live(self, key: str) -> Live | None:
+        with self._lock:
+            return self._live.get(key)
+
+    def record(self, owner: str, evaluation_id: str) -> tuple[str, Record | None, Live | None]:
+        key = storage_key(owner, evaluation_id)
+        return key, self.store.get(key), self.live(key)
+
+    def _forget(self, key: str) -> None:
+        with self._lock:
+            self._live.pop(key, None)
+        self.store.delete(key)
+
+    def _started(self, job: Job) -> None:
+        with self._lock:
+            self._live[job.key].status = "running"
+        self.store.mark_running(job.key)
+
+    def _progressed(self, job: Job, stage: str, fraction: float) -> None:
+        with self._lock:
+            live = self._live[job.key]
+            live.stage, live.progress = stage, fraction
+
+    def _finished(self, job: Job, outcome: Outcome) -> None:
+        if outcome.error is not None:
+            outcome.error.setdefault("request_id", job.label)
+        try:
+            self.store.finish(job.key, outcome.result, outcome.field, outcome.error)
+        except (TypeError, ValueError) as exc:
+            log.error("result of %s could not be stored: %s", job.key[:12], exc)
+            outcome = failure("SolveFailed", f"the engine returned a result that is not "
+                              f"plain JSON ({exc}); this is an engine fault")
+            self.store.finish(job.key, None, None, outcome.error)
+        with self._lock:
+            live = self._live.pop(job.key)
+        if not outcome.ok:
+            log.warning("evaluation failed (request %s): %s: %s", job.label,
+                        outcome.error["kind"], outcome.error["message"])
+        live.done.set_result(outcome)

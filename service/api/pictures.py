@@ -1,0 +1,76 @@
+"""Pictures and the report of a done evaluation, drawn by ``coldseam.reporting``."""
+
+from __future__ import annotations
+
+import importlib
+import json
+from typing import Any
+
+from fastapi import APIRouter, HTTPException
+from fastapi.concurrency import run_in_threadpool
+from fastapi.responses import HTMLResponse, Response
+
+from coldseam.api.deps import EvaluationsDep, OwnerDep
+from coldseam.api.evaluations import finished
+from coldseam.api.jobs import Evaluations
+from coldseam.api.models import ErrorOut
+from coldseam.schema.evaluation import parse_request
+
+router = APIRouter(prefix="/evaluations", tags=["evaluations"])
+NOT_FOUND: dict[int | str, dict[str, Any]] = {404: {"model": ErrorOut},
+                                              409: {"model": ErrorOut}}
+
+
+def reporting(module: str, name: str) -> Any:
+    """``coldseam.reporting.<module>.<name>``, imported on first use (it pulls matplotlib)."""
+    try:
+        return getattr(importlib.import_module(f"coldseam.reporting.{module}"), name)
+    except (ImportError, AttributeError):
+        raise HTTPException(501, f"this installation cannot draw ({module}.{name} is "
+                            "missing)") from None
+
+
+def _field_and_result(evaluations: Evaluations, owner: str,
+                      evaluation_id: str) -> tuple[dict, dict, dict]:
+    key, record = finished(evaluations, owner, evaluation_id)
+    data = evaluations.store.field(key)
+    if data is None:
+        raise HTTPException(404, f"evaluation {evaluation_id} has no stored field")
+    result = {"id": record.id, **(record.result or {})}
+    request = parse_request(json.loads(record.request_text)).model_dump(mode="json")
+    return json.loads(data), result, request
+
+
+@router.get("/{evaluation_id}/picture.svg", response_class=Response, responses=NOT_FOUND)
+async def picture_svg(evaluation_id: str, evaluations: EvaluationsDep,
+                      owner: OwnerDep) -> Response:
+    """The temperature field as SVG."""
+    render = reporting("picture", "render_svg")
+    field, result, _ = await run_in_threadpool(_field_and_result, evaluations, owner,
+                                               evaluation_id)
+    svg = await run_in_threadpool(render, field, result)
+    return Response(svg, media_type="image/svg+xml")
+
+
+@router.get("/{evaluation_id}/picture.png", response_class=Response, responses=NOT_FOUND)
+async def picture_png(evaluation_id: str, evaluations: EvaluationsDep,
+                      owner: OwnerDep) -> Response:
+    """The temperature field as PNG."""
+    render = reporting("picture", "render_png")
+    field, result, _ = await run_in_threadpool(_field_and_result, evaluations, owner,
+                                               evaluation_id)
+    png = await run_in_threadpool(render, field, result)
+    return Response(png, media_type="image/png")
+
+
+@router.get("/{evaluation_id}/report", response_class=HTMLResponse, responses=NOT_FOUND)
+async def report(evaluation_id: str, evaluations: EvaluationsDep,
+                 owner: OwnerDep) -> HTMLResponse:
+    """A printable HTML report of the evaluation (inputs, results, picture, caution)."""
+    render_svg = reporting("picture", "render_svg")
+    render_report = reporting("report", "render_report")
+    field, result, request = await run_in_threadpool(_field_and_result, evaluations,
+                                                          owner, evaluation_id)
+    svg = await run_in_threadpool(render_svg, field, result)
+    html = await run_in_threadpool(render_report, result, request, svg)
+    return HTMLResponse(html)

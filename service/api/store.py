@@ -1,0 +1,185 @@
+"""Stored evaluations: SQLite in WAL mode, one transaction per change, safe across threads.
+
+Each row is keyed by ``storage_key(owner, id)``, so the same request sent with two API keys
+gives two private rows, and an id alone does not reach another key's row. The request is kept
+exactly as the user sent it (``request`` text), beside the result and the temperature field
+(zlib-compressed compact JSON).
+"""
+
+from __future__ import annotations
+
+import hashlib
+import json
+import sqlite3
+import threading
+import time
+import zlib
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
+
+SCHEMA = """
+CREATE TABLE IF NOT EXISTS evaluations (
+    key TEXT PRIMARY KEY,
+    id TEXT NOT NULL,
+    owner TEXT NOT NULL,
+    status TEXT NOT NULL,
+    name TEXT,
+    created_at REAL NOT NULL,
+    updated_at REAL NOT NULL,
+    request TEXT NOT NULL,
+    summary TEXT,
+    result TEXT,
+    field BLOB,
+    error TEXT
+);
+CREATE INDEX IF NOT EXISTS evaluations_by_owner ON evaluations (owner, created_at DESC);
+"""
+
+UNFINISHED = ("queued", "running")
+
+
+def storage_key(owner: str, evaluation_id: str) -> str:
+    """The row key of ``evaluation_id`` for ``owner`` (a secret-derived tag, or "")."""
+    return hashlib.sha256(f"{owner}\n{evaluation_id}".encode()).hexdigest()
+
+
+@dataclass(frozen=True)
+class Record:
+    id: str
+    status: str
+    name: str | None
+    created_at: float
+    updated_at: float
+    request_text: str
+    summary: dict[str, Any] | None
+    result: dict[str, Any] | None
+    error: dict[str, Any] | None
+
+
+class Store:
+    """The evaluations table of one SQLite database file."""
+
+    def __init__(self, path: Path) -> None:
+        path.parent.mkdir(parents=True, exist_ok=True)
+        self._conn = sqlite3.connect(path, check_same_thread=False, isolation_level=None)
+        self._lock = threading.Lock()
+        with self._lock:
+            self._conn.execute("PRAGMA journal_mode=WAL")
+            self._conn.execute("PRAGMA synchronous=NORMAL")
+            self._conn.executescript(SCHEMA)
+
+    def close(self) -> None:
+        with self._lock:
+            self._conn.close()
+
+    def _write(self, sql: str, params: tuple) -> None:
+        with self._lock:
+            self._conn.execute("BEGIN IMMEDIATE")
+            try:
+                self._conn.execute(sql, params)
+            except sqlite3.Error:
+                self._conn.execute("ROLLBACK")
+                raise
+            self._conn.execute("COMMIT")
+
+    def queue(self, key: str, evaluation_id: str, owner: str, name: str | None,
+              request_text: str) -> None:
+        """Record a new (or re-sent, after a failure) evaluation as queued."""
+        now = time.time()
+        self._write(
+            "INSERT INTO evaluations (key, id, owner, status, name, created_at, updated_at, "
+            "request) VALUES (?, ?, ?, 'queued', ?, ?, ?, ?) ON CONFLICT(key) DO UPDATE SET "
+            "status='queued', created_at=excluded.created_at, updated_at=excluded.updated_at, "
+            "request=excluded.request, result=NULL, field=NULL, error=NULL, summary=NULL",
+            (key, evaluation_id, owner, name, now, now, request_text),
+        )
+
+    def delete(self, key: str) -> None:
+        self._write("DELETE FROM evaluations WHERE key=?", (key,))
+
+    def mark_running(self, key: str) -> None:
+        self._write("UPDATE evaluations SET status='running', updated_at=? WHERE key=?",
+                    (time.time(), key))
+
+    def finish(self, key: str, result: dict[str, Any] | None, field: dict[str, Any] | None,
+               error: dict[str, Any] | None) -> None:
+        """Store the outcome of an evaluation in one transaction."""
+        status = "failed" if error is not None else "done"
+        packed = zlib.compress(_compact(field).encode(), 6) if field is not None else None
+        self._write(
+            "UPDATE evaluations SET status=?, updated_at=?, summary=?, result=?, field=?, "
+            "error=? WHERE key=?",
+            (status, time.time(), _dumps(summarise(result)), _dumps(result), packed,
+             _dumps(error), key),
+        )
+
+    def interrupt_unfinished(self, message: str) -> int:
+        """Mark evaluations a previous server left queued or running as failed."""
+        error = _dumps({"kind": "Interrupted", "message": message, "field": ""})
+        with self._lock:
+            cursor = self._conn.execute(
+                "UPDATE evaluations SET status='failed', error=?, updated_at=? "
+                "WHERE status IN (?, ?)", (error, time.time(), *UNFINISHED))
+        return cursor.rowcount
+
+    def get(self, key: str) -> Record | None:
+        with self._lock:
+            row = self._conn.execute(
+                "SELECT id, status, name, created_at, updated_at, request, summary, result, "
+                "error FROM evaluations WHERE key=?", (key,)).fetchone()
+        return _record(row) if row else None
+
+    def field(self, key: str) -> bytes | None:
+        """The stored temperature field as compact JSON bytes."""
+        with self._lock:
+            row = self._conn.execute("SELECT field FROM evaluations WHERE key=?",
+                                     (key,)).fetchone()
+        return zlib.decompress(row[0]) if row and row[0] is not None else None
+
+    def page(self, owner: str, limit: int, offset: int) -> tuple[list[Record], int]:
+        """``limit`` records of ``owner`` from ``offset``, newest first, and the total."""
+        with self._lock:
+            total = self._conn.execute("SELECT COUNT(*) FROM evaluations WHERE owner=?",
+                                       (owner,)).fetchone()[0]
+            rows = self._conn.execute(
+                "SELECT id, status, name, created_at, updated_at, '', summary, NULL, error "
+                "FROM evaluations WHERE owner=? ORDER BY created_at DESC, rowid DESC "
+                "LIMIT ? OFFSET ?", (owner, limit, offset)).fetchall()
+        return [_record(row) for row in rows], total
+
+
+def summarise(result: dict[str, Any] | None) -> dict[str, Any] | None:
+    """The headline figures of a result, for lists."""
+    if result is None:
+        return None
+    psi = result.get("psi") or {}
+    condensation = result.get("condensation") or {}
+    return {"L2D": result.get("L2D"), "psi": psi.get("value"),
+            "fRsi": condensation.get("fRsi"), "verdict": condensation.get("verdict")}
+
+
+def _record(row: tuple) -> Record:
+    return Record(id=row[0], status=row[1], name=row[2], created_at=row[3],
+                  updated_at=row[4], request_text=row[5], summary=_loads(row[6]),
+                  result=_loads(row[7]), error=_loads(row[8]))
+
+
+def _compact(value: Any) -> str:
+    """Compact JSON; numpy arrays and scalars (``tolist``/``item``) become plain lists/numbers."""
+    return json.dumps(value, separators=(",", ":"), allow_nan=False, default=_plain)
+
+
+def _plain(value: Any) -> Any:
+    for method in ("tolist", "item"):
+        if hasattr(value, method):
+            return getattr(value, method)()
+    raise TypeError(f"{type(value).__name__} is not JSON-able")
+
+
+def _dumps(value: Any) -> str | None:
+    return None if value is None else _compact(value)
+
+
+def _loads(text: str | None) -> Any:
+    return None if text is None else json.loads(text)

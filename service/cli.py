@@ -1,0 +1,156 @@
+"""The ``coldseam`` command: ``serve`` runs the service, ``evaluate`` one file.
+
+Imports stay inside the commands: ``coldseam evaluate`` must start fast and never loads the web
+stack.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import os
+import sys
+from pathlib import Path
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:
+    from coldseam.settings import Settings
+
+#: Exit status for input the user must fix.
+EXIT_BAD_INPUT = 2
+
+
+def main(argv: list[str] | None = None) -> int:
+    """Entry point of the ``coldseam`` command."""
+    args = build_parser().parse_args(argv)
+    return args.command(args)
+
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = argparse.ArgumentParser(prog="coldseam", description="Thermal-bridge evaluation "
+                                     "of 2D building-envelope sections.")
+    commands = parser.add_subparsers(required=True, metavar="COMMAND")
+    serve = commands.add_parser("serve", help="run the web service")
+    serve.add_argument("--host", help="address to listen on (default 127.0.0.1)")
+    serve.add_argument("--port", type=int, help="port (default 8000)")
+    serve.add_argument("--data-dir", help="where results are stored (default ./coldseam-data)")
+    serve.add_argument("--workers", type=int, help="evaluation worker processes")
+    serve.set_defaults(command=cmd_serve)
+    evaluate = commands.add_parser("evaluate", help="evaluate one request or section file")
+    evaluate.add_argument("file", help="an evaluation request or a bare section (JSON); - "
+                          "for standard input")
+    evaluate.add_argument("--indent", type=int, default=2, help="JSON indent (0: one line)")
+    evaluate.set_defaults(command=cmd_evaluate)
+    hash_key = commands.add_parser("hash-key", help="print the sha256 digest of an API key "
+                                   "read from standard input, for COLDSEAM_API_KEY_HASHES_FILE")
+    hash_key.set_defaults(command=cmd_hash_key)
+    return parser
+
+
+def cmd_serve(args: argparse.Namespace) -> int:
+    """Start uvicorn with the app; options override ``COLDSEAM_*`` settings."""
+    from pydantic import ValidationError
+
+    from coldseam.settings import Settings
+
+    overrides = {name: value for name, value in (
+        ("host", args.host), ("port", args.port), ("data_dir", args.data_dir),
+        ("workers", args.workers)) if value is not None}
+    try:
+        settings = Settings(**overrides)
+    except ValidationError as exc:
+        return _fail(f"bad setting: {exc.errors()[0]['loc'][0]}: {exc.errors()[0]['msg']}")
+    problem = _exposure_problem(settings)
+    if problem:
+        return _fail(problem)
+    _serve(settings)
+    return 0
+
+
+def _exposure_problem(settings: Settings) -> str | None:
+    from ipaddress import ip_address
+
+    try:
+        loopback = settings.host == "localhost" or ip_address(settings.host).is_loopback
+    except ValueError:
+        loopback = False
+    keyed = settings.api_keys or settings.api_key_hashes_file
+    if loopback or keyed or settings.allow_open:
+        return None
+    return (f"refusing to serve without API keys on {settings.host}: set COLDSEAM_API_KEYS "
+            "(or COLDSEAM_API_KEY_HASHES_FILE), or COLDSEAM_ALLOW_OPEN=1 to accept that")
+
+
+def _serve(settings: Settings) -> None:
+    import logging
+
+    import uvicorn
+
+    from coldseam.api.main import create_app
+
+    logging.basicConfig(level=settings.log_level.upper(), stream=sys.stderr,
+                        format="%(asctime)s %(levelname)s %(name)s %(message)s")
+    app = create_app(settings)
+    uvicorn.run(app, host=settings.host, port=settings.port, access_log=False,
+                log_level=settings.log_level.lower())
+
+
+def cmd_evaluate(args: argparse.Namespace) -> int:
+    """Evaluate one file in this process and print the result (with its id) on stdout."""
+    from coldseam.errors import ColdseamError, SolveFailed
+
+    try:
+        data = _read_json(args.file)
+        result = evaluate_document(data)
+    except (OSError, ValueError) as exc:
+        return _fail(str(exc))
+    except SolveFailed as exc:
+        return _fail(f"{exc.field}: {exc.message}" if exc.field else exc.message, 1)
+    except ColdseamError as exc:
+        return _fail(f"{exc.field}: {exc.message}" if exc.field else exc.message)
+    json.dump(result, sys.stdout, indent=args.indent or None, ensure_ascii=False)
+    sys.stdout.write("\n")
+    return 0
+
+
+def evaluate_document(data: object) -> dict:
+    """The result document (with ``id``) of an evaluation request or bare section."""
+    from coldseam import CAUTION
+    from coldseam.api.worker import load_engine
+    from coldseam.schema.evaluation import parse_request, request_digest
+    from coldseam.settings import DEFAULT_ENGINE
+
+    request = parse_request(data)
+    engine = load_engine(os.environ.get("COLDSEAM_ENGINE", DEFAULT_ENGINE))
+    evaluation = engine(request, None)
+    result = {"id": request_digest(request), **evaluation.result}
+    result.setdefault("caution", CAUTION)
+    return result
+
+
+def _read_json(name: str) -> object:
+    text = sys.stdin.read() if name == "-" else Path(name).read_text(encoding="utf-8")
+    try:
+        return json.loads(text)
+    except json.JSONDecodeError as exc:
+        raise ValueError(f"{name}: not valid JSON: {exc.msg} at line {exc.lineno} column "
+                         f"{exc.colno}") from None
+
+
+def cmd_hash_key(args: argparse.Namespace) -> int:
+    import hashlib
+
+    key = sys.stdin.readline().strip()
+    if not key:
+        return _fail("no key on standard input")
+    sys.stdout.write(hashlib.sha256(key.encode()).hexdigest() + "\n")
+    return 0
+
+
+def _fail(message: str, code: int = EXIT_BAD_INPUT) -> int:
+    sys.stderr.write(f"coldseam: {message}\n")
+    return code
+
+
+if __name__ == "__main__":
+    sys.exit(main())

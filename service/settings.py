@@ -1,0 +1,70 @@
+"""Service settings, from ``COLDSEAM_*`` environment variables (and the `serve` options).
+
+``get_settings()`` is cached; the API takes settings through a dependency on it, so tests
+replace it with ``app.dependency_overrides[get_settings]`` or build an app from their own
+``Settings(...)``.
+"""
+
+from __future__ import annotations
+
+from functools import lru_cache
+from pathlib import Path
+
+from pydantic import Field
+from pydantic_settings import BaseSettings, SettingsConfigDict
+
+DEFAULT_ENGINE = "coldseam.thermal.evaluate:evaluate"
+
+
+def _default_frontend_dir() -> Path | None:
+    """The repository's ``frontend/`` folder beside the package source, when there is one."""
+    candidate = Path(__file__).resolve().parent.parent / "frontend"
+    return candidate if candidate.is_dir() else None
+
+
+class Settings(BaseSettings):
+    """Every knob of the service. Sizes in bytes, times in seconds."""
+
+    model_config = SettingsConfigDict(env_prefix="COLDSEAM_", extra="ignore")
+
+    host: str = "127.0.0.1"
+    port: int = Field(default=8000, ge=0, le=65535)
+    data_dir: Path = Field(default=Path("coldseam-data"),
+                           description="Holds the SQLite database of results.")
+    workers: int = Field(default=2, ge=1, le=64, description="Evaluation worker processes.")
+    queue_size: int = Field(default=16, ge=0, le=10_000,
+                            description="Evaluations that may wait for a worker; more get 429.")
+    evaluation_timeout: float = Field(default=300.0, gt=0,
+                                      description="Wall-time limit of one evaluation.")
+    worker_start_method: str = Field(default="spawn", pattern="^(spawn|forkserver)$")
+    engine: str = Field(default=DEFAULT_ENGINE,
+                        description="'module:function' evaluating one request.")
+
+    max_body_bytes: int = Field(default=10_000_000, ge=1_000)
+    max_vertices: int = Field(default=50_000, ge=10,
+                              description="Polygon, hole and path vertices of one section.")
+    max_regions: int = Field(default=2_000, ge=1)
+    max_nodes: int = Field(default=1_000_000, ge=100,
+                           description="Largest `options.max_nodes` a request may ask for.")
+
+    api_keys: str | None = Field(default=None, description="Comma-separated bearer keys.")
+    api_key_hashes_file: Path | None = Field(
+        default=None, description="File of sha256 hex digests of bearer keys, one a line.")
+    allow_open: bool = Field(default=False, description="Serve without keys off loopback.")
+    cors_origins: str | None = Field(default=None, description="Comma-separated origins.")
+    frontend_dir: Path | None = Field(default_factory=_default_frontend_dir)
+    log_level: str = "INFO"
+
+    @property
+    def database_path(self) -> Path:
+        return self.data_dir / "coldseam.sqlite3"
+
+    @property
+    def cors_origin_list(self) -> list[str]:
+        return [o.strip() for o in (self.cors_origins or "").split(",") if o.strip()]
+
+
+@lru_cache
+def get_settings() -> Settings:
+    """The settings of this process (read once from the environment)."""
+    return Settings()
