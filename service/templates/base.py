@@ -45,6 +45,8 @@ class Parameter:
     min: float | None = None
     max: float | None = None
     options: tuple[str, ...] = ()
+    #: An optional layer: 0 means none, otherwise at least this (no slivers).
+    min_nonzero: float | None = None
 
     def as_dict(self) -> dict[str, Any]:
         out = {"name": self.name, "unit": self.unit, "default": self.default,
@@ -52,6 +54,8 @@ class Parameter:
                "kind": self.kind}
         if self.kind == "choice":
             out["options"] = list(self.options)
+        if self.min_nonzero is not None:
+            out["min_nonzero"] = self.min_nonzero
         return out
 
 
@@ -69,6 +73,13 @@ class TemplateInfo:
 
 def length(name: str, default: float, low: float, high: float, description: str) -> Parameter:
     return Parameter(name, "mm", default, description, "number", low, high)
+
+
+def optional_length(name: str, default: float, least: float, high: float,
+                    description: str) -> Parameter:
+    """A thickness where 0 means the layer is absent, else at least ``least`` mm."""
+    return Parameter(name, "mm", default, f"{description} (0: none, else at least {least:g} mm)",
+                     "number", 0.0, high, min_nonzero=least)
 
 
 def material(name: str, default: str, description: str) -> Parameter:
@@ -135,6 +146,9 @@ def _number(p: Parameter, value: Any) -> float:
     if (p.min is not None and value < p.min) or (p.max is not None and value > p.max):
         raise invalid(p.name, f"{p.name} must be between {p.min:g} and {p.max:g} {p.unit}; "
                       f"got {value:g}")
+    if p.min_nonzero is not None and 0 < value < p.min_nonzero:
+        raise invalid(p.name, f"{p.name} must be 0 (none) or at least {p.min_nonzero:g} "
+                      f"{p.unit}; got {value:g}")
     return value
 
 

@@ -103,10 +103,11 @@ def build(p: dict[str, Any]) -> dict[str, Any]:
         region("wall_insulation", [(0, -h), (ti, -h), (ti, e.structure_top(ti)),
                                    (0, e.structure_top(0))]),
         region("wall", [(ti, -h), (t, -h), (t, 0), (ti, e.underside(ti))]),
-        region("roof_structure", [(ti, e.underside(ti)), e.end(), e.end(e.dr),
+        # Shared vertices are repeated in both neighbours so that the edges coincide exactly.
+        region("roof_structure", [(ti, e.underside(ti)), (t, 0), e.end(), e.end(e.dr),
                                   (ti, e.structure_top(ti))]),
-        region("roof_insulation", [(0, e.structure_top(0)), e.end(e.dr), e.end(e.d),
-                                   (0, e.top(0))]),
+        region("roof_insulation", [(0, e.structure_top(0)), (ti, e.structure_top(ti)),
+                                   e.end(e.dr), e.end(e.d), (0, e.top(0))]),
     ]
     boundaries = [
         boundary("outside", RSE, [(0, -h), (0, e.top(0)), e.end(e.d)]),

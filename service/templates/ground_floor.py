@@ -26,6 +26,7 @@ from coldseam.templates.base import (
     invalid,
     length,
     material,
+    optional_length,
     rect,
     region,
     request,
@@ -43,12 +44,12 @@ INFO = TemplateInfo(
         material("wall_insulation_material", "eps_035", "Wall insulation"),
         length("slab_thickness", 150, 80, 300, "Thickness of the floor slab"),
         material("slab_material", "reinforced_concrete_1pct", "Floor slab"),
-        length("floor_insulation_thickness", 100, 0, 300, "Insulation under the slab (0: none)"),
+        optional_length("floor_insulation_thickness", 100, 10, 300, "Insulation under the slab"),
         material("floor_insulation_material", "xps_034", "Insulation under the slab"),
-        length("perimeter_insulation_thickness", 80, 0, 200,
-               "Perimeter insulation on the outside of the foundation (0: none)"),
-        length("perimeter_insulation_depth", 600, 0, 1500,
-               "Depth of the perimeter insulation below ground level"),
+        optional_length("perimeter_insulation_thickness", 80, 10, 200,
+                        "Perimeter insulation on the outside of the foundation"),
+        optional_length("perimeter_insulation_depth", 600, 50, 1500,
+                        "Depth of the perimeter insulation below ground level"),
         material("perimeter_insulation_material", "xps_034", "Perimeter insulation"),
         length("floor_level", 150, 0, 600, "Height of the finished floor above ground level"),
         length("foundation_depth", 800, 300, 2000, "Depth of the foundation below ground level"),
@@ -108,9 +109,9 @@ def _regions(p: dict[str, Any], t: float, top: float, inner_end: float) -> list[
     ti, b = p["wall_insulation_thickness"], p["floor_width"]
     fb, tu = _floor_bottom(p), p["floor_insulation_thickness"]
     tp, dp = p["perimeter_insulation_thickness"], p["perimeter_insulation_depth"]
-    out = [region("ground", rect(-2.5 * b, -2.5 * b, inner_end, 0))]
-    if fb > 0:
-        out.append(region("ground", rect(t, 0, inner_end, fb)))
+    ground_top = max(fb, 0.0)  # under the building the ground meets the floor construction
+    out = [region("ground", [(-2.5 * b, -2.5 * b), (inner_end, -2.5 * b),
+                             (inner_end, ground_top), (t, ground_top), (t, 0), (-2.5 * b, 0)])]
     out += [region("wall", rect(ti, -p["foundation_depth"], t, top)),
             region("wall_insulation", rect(0, 0, ti, top))]
     if tp > 0 and dp > 0:

@@ -25,6 +25,7 @@ from coldseam.templates.base import (
     invalid,
     length,
     material,
+    optional_length,
     rect,
     region,
     request,
@@ -44,10 +45,10 @@ INFO = TemplateInfo(
         length("frame_width", 100, 50, 200, "Visible width of the frame"),
         Parameter("frame_conductivity", "W/(m·K)", 0.13, "Equivalent conductivity of the "
                   "frame block", "number", 0.03, 10.0),
-        length("frame_offset", 160, 0, 650, "Distance from the outer face of the wall to "
-               "the outer face of the frame"),
-        length("reveal_insulation_thickness", 0, 0, 100, "Insulation on the outer reveal, "
-               "between the wall face and the frame (0: none)"),
+        optional_length("frame_offset", 160, 10, 650, "Distance from the outer face of the "
+                        "wall to the outer face of the frame"),
+        optional_length("reveal_insulation_thickness", 0, 10, 100, "Insulation on the outer "
+                        "reveal, between the wall face and the frame"),
         material("reveal_insulation_material", "xps_034", "Reveal insulation"),
     ),
 )
