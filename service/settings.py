@@ -36,6 +36,8 @@ class Settings(BaseSettings):
                             description="Evaluations that may wait for a worker; more get 429.")
     evaluation_timeout: float = Field(default=300.0, gt=0,
                                       description="Wall-time limit of one evaluation.")
+    prestart_workers: bool = Field(default=True, description="Start the workers with the "
+                                   "server, not with the first evaluation.")
     worker_start_method: str = Field(default="spawn", pattern="^(spawn|forkserver)$")
     engine: str = Field(default=DEFAULT_ENGINE,
                         description="'module:function' evaluating one request.")

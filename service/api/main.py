@@ -39,7 +39,8 @@ async def lifespan(app: FastAPI) -> AsyncIterator[None]:
                                            "finished; send it again"):
         log.warning("%d unfinished evaluations of an earlier run marked failed", count)
     pool = WorkerPool(settings.workers, settings.queue_size, settings.engine,
-                      settings.evaluation_timeout, settings.worker_start_method)
+                      settings.evaluation_timeout, settings.worker_start_method,
+                      settings.prestart_workers)
     pool.start()
     app.state.evaluations = Evaluations(store, pool)
     log.info("serving with %d workers, data in %s, %s", settings.workers, settings.data_dir,

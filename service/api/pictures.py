@@ -45,9 +45,9 @@ def _field_and_result(evaluations: Evaluations, owner: str,
 async def picture_svg(evaluation_id: str, evaluations: EvaluationsDep,
                       owner: OwnerDep) -> Response:
     """The temperature field as SVG."""
-    render = reporting("picture", "render_svg")
     field, result, _ = await run_in_threadpool(_field_and_result, evaluations, owner,
                                                evaluation_id)
+    render = reporting("picture", "render_svg")
     svg = await run_in_threadpool(render, field, result)
     return Response(svg, media_type="image/svg+xml")
 
@@ -56,9 +56,9 @@ async def picture_svg(evaluation_id: str, evaluations: EvaluationsDep,
 async def picture_png(evaluation_id: str, evaluations: EvaluationsDep,
                       owner: OwnerDep) -> Response:
     """The temperature field as PNG."""
-    render = reporting("picture", "render_png")
     field, result, _ = await run_in_threadpool(_field_and_result, evaluations, owner,
                                                evaluation_id)
+    render = reporting("picture", "render_png")
     png = await run_in_threadpool(render, field, result)
     return Response(png, media_type="image/png")
 
@@ -67,10 +67,10 @@ async def picture_png(evaluation_id: str, evaluations: EvaluationsDep,
 async def report(evaluation_id: str, evaluations: EvaluationsDep,
                  owner: OwnerDep) -> HTMLResponse:
     """A printable HTML report of the evaluation (inputs, results, picture, caution)."""
+    field, result, request = await run_in_threadpool(_field_and_result, evaluations,
+                                                     owner, evaluation_id)
     render_svg = reporting("picture", "render_svg")
     render_report = reporting("report", "render_report")
-    field, result, request = await run_in_threadpool(_field_and_result, evaluations,
-                                                          owner, evaluation_id)
     svg = await run_in_threadpool(render_svg, field, result)
     html = await run_in_threadpool(render_report, result, request, svg)
     return HTMLResponse(html)

@@ -75,8 +75,13 @@ class WorkerSlot:
         self.conn: Connection | None = None
         self.ready = False
         self.closed = False
+        self._lock = threading.RLock()
 
     def start(self) -> None:
+        with self._lock:
+            self._start()
+
+    def _start(self) -> None:
         parent_conn, child_conn = self._ctx.Pipe()
         self.process = self._ctx.Process(target=worker_main, name=self.name, daemon=True,
                                          args=(child_conn, self._engine_spec))
@@ -98,12 +103,19 @@ class WorkerSlot:
         self.kill()
 
     def kill(self) -> None:
-        if self.process is not None and self.process.is_alive():
-            self.process.kill()
-            self.process.join(STOP_GRACE)
-        if self.conn is not None:
-            self.conn.close()
-        self.process, self.conn, self.ready = None, None, False
+        with self._lock:
+            self.interrupt()
+            if self.process is not None:
+                self.process.join(STOP_GRACE)
+            if self.conn is not None:
+                self.conn.close()
+            self.process, self.conn, self.ready = None, None, False
+
+    def interrupt(self) -> None:
+        """Kill the worker process, leaving the pipe to the thread that reads it."""
+        process = self.process
+        if process is not None and process.is_alive():
+            process.kill()
 
     def run(self, job: Job, timeout: float) -> Outcome:
         """Evaluate ``job`` on this worker within ``timeout`` seconds of wall time."""
@@ -208,7 +220,7 @@ class WorkerPool:
     """``workers`` processes taking jobs from a queue of at most ``queue_size`` waiting."""
 
     def __init__(self, workers: int, queue_size: int, engine_spec: str, timeout: float,
-                 start_method: str = "spawn") -> None:
+                 start_method: str = "spawn", prestart: bool = True) -> None:
         ctx = multiprocessing.get_context(start_method)
         self._slots = [WorkerSlot(ctx, engine_spec, f"coldseam-worker-{i}")
                        for i in range(workers)]
@@ -218,7 +230,9 @@ class WorkerPool:
         self._timeout = timeout
         self._threads: list[threading.Thread] = []
         self._mean_seconds = 5.0
+        self._prestart = prestart
         self.stopping = False
+        self.completed = 0  # evaluations run to an outcome, for the health page and tests
 
     def start(self) -> None:
         for slot in self._slots:
@@ -245,16 +259,24 @@ class WorkerPool:
             self._queue.put(None)
         for slot in self._slots:
             slot.closed = True
-            slot.kill()
+            slot.interrupt()
         for thread in self._threads:
-            thread.join(STOP_GRACE)
+            thread.join(2 * STOP_GRACE)
+        for slot in self._slots:
+            slot.kill()
+
+    def worker_pids(self) -> list[int | None]:
+        """Process ids of the workers (None where none is running)."""
+        return [slot.process.pid if slot.process is not None else None
+                for slot in self._slots]
 
     def _runner(self, slot: WorkerSlot) -> None:
-        try:
-            slot.start()
-        except (OSError, RuntimeError) as exc:
-            log.error("worker %s could not start: %s (retried with the first job)",
-                      slot.name, exc)
+        if self._prestart:
+            try:
+                slot.start()
+            except (OSError, RuntimeError) as exc:
+                log.error("worker %s could not start: %s (retried with the first job)",
+                          slot.name, exc)
         while (job := self._queue.get()) is not None:
             if self.stopping:
                 job.on_finish(job, failure("Interrupted", "the server stopped before this "
@@ -271,4 +293,5 @@ class WorkerPool:
             outcome = failure("Interrupted", "the server stopped during this evaluation; "
                               "send it again")
         self._mean_seconds = 0.8 * self._mean_seconds + 0.2 * (time.monotonic() - started)
+        self.completed += 1
         job.on_finish(job, outcome)

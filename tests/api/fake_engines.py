@@ -58,3 +58,20 @@ def _result(request) -> dict[str, Any]:
 def _field(request) -> dict[str, Any]:
     return {"unit": "m", "points": [[0.0, 0.0], [1.0, 0.0], [0.0, 1.0]],
             "triangles": [[0, 1, 2]], "temperature": [20.0, 0.0, 10.0]}
+
+
+def real_with_exit_hook(request, progress=None):
+    """The real engine; a section described ``exit-while-meshing`` makes the worker process
+    end itself (``os._exit``) when the engine reports the meshing stage."""
+    from coldseam.thermal.evaluate import evaluate as real_evaluate
+
+    report = progress or (lambda stage, fraction: None)
+    if (request.section.description or "") != "exit-while-meshing":
+        return real_evaluate(request, report)
+
+    def hook(stage: str, fraction: float) -> None:
+        report(stage, fraction)
+        if stage == "meshing":
+            os._exit(9)
+
+    return real_evaluate(request, hook)

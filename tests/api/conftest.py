@@ -1,0 +1,73 @@
+"""Fixtures of the service tests: settings on a temporary data folder, TestClients, requests."""
+
+from __future__ import annotations
+
+import copy
+import json
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager
+from pathlib import Path
+from typing import Any
+
+import pytest
+from fastapi.testclient import TestClient
+
+from coldseam.api.main import create_app
+from coldseam.settings import Settings
+
+REPO = Path(__file__).resolve().parents[2]
+WALL_1D: dict[str, Any] = json.loads((REPO / "examples" / "wall-1d.json").read_text())
+FAKE = "fake_engines:evaluate"
+REAL_WITH_HOOK = "fake_engines:real_with_exit_hook"
+
+
+def wall(**section_changes: Any) -> dict[str, Any]:
+    """A copy of the example request with some section fields changed."""
+    request = copy.deepcopy(WALL_1D)
+    request["section"].update(section_changes)
+    return request
+
+
+def fake(command: str = "", name: str = "fake section") -> dict[str, Any]:
+    """A request for the fake engine; ``command`` is its behaviour (see fake_engines)."""
+    return wall(name=name, description=f"fake: {command}")
+
+
+@pytest.fixture(autouse=True)
+def _no_service_environment(monkeypatch: pytest.MonkeyPatch) -> None:
+    """Settings of the machine running the tests must not leak into them."""
+    import os
+
+    for name in list(os.environ):
+        if name.startswith("COLDSEAM_"):
+            monkeypatch.delenv(name)
+
+
+@pytest.fixture
+def make_settings(tmp_path: Path) -> Callable[..., Settings]:
+    def make(**changes: Any) -> Settings:
+        values = {"data_dir": tmp_path / "data", "engine": FAKE, "workers": 1,
+                  "frontend_dir": None, "prestart_workers": False, **changes}
+        return Settings(**values)
+
+    return make
+
+
+@pytest.fixture
+def client_for(make_settings: Callable[..., Settings]) -> Callable[..., Any]:
+    """``with client_for(**settings) as client:`` a TestClient on a fresh app."""
+
+    @contextmanager
+    def open_client(raise_server_exceptions: bool = True, **changes: Any
+                    ) -> Iterator[TestClient]:
+        app = create_app(make_settings(**changes))
+        with TestClient(app, raise_server_exceptions=raise_server_exceptions) as client:
+            yield client
+
+    return open_client
+
+
+@pytest.fixture
+def client(client_for: Callable[..., Any]) -> Iterator[TestClient]:
+    with client_for() as test_client:
+        yield test_client
