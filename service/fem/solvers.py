@@ -41,6 +41,11 @@ class MultigridSolver:
         self.hierarchy = pyamg.smoothed_aggregation_solver(self.matrix, symmetry="symmetric")
 
     def solve(self, rhs: np.ndarray) -> np.ndarray:
+        if rhs.ndim == 2:
+            return np.column_stack([self._solve(rhs[:, k]) for k in range(rhs.shape[1])])
+        return self._solve(rhs)
+
+    def _solve(self, rhs: np.ndarray) -> np.ndarray:
         norm = np.linalg.norm(rhs)
         if norm == 0:
             return np.zeros_like(rhs)

@@ -18,11 +18,11 @@ from scipy.spatial import cKDTree
 from coldseam.geometry.outline import Classified
 
 #: Level-0 sizes as fractions of the section extent, and the growth rate g.
-H_MAX = 1 / 10
-H_JUNCTION = 1 / 40
-GROWTH = 0.3
+H_MAX = 1 / 6
+H_JUNCTION = 1 / 8
+GROWTH = 0.5
 #: Elements along a thin layer are at most this many times its thickness.
-THIN_ASPECT = 3.0
+THIN_ASPECT = 12.0
 SAMPLES = 24
 
 
@@ -39,7 +39,7 @@ class SegmentPlan:
         return self._graded(np.atleast_2d(xy))
 
     def _graded(self, xy: np.ndarray) -> np.ndarray:
-        return _graded(xy, self._tree, self._vertex_size, self.h_max)
+        return _graded(xy, self._tree, self._vertex_size, self.h_max * self._factor) / self._factor
 
 
 def _graded(xy, tree, vertex_size, h_max) -> np.ndarray:
@@ -104,10 +104,11 @@ def local_feature_size(points, seg_array, xy, own: np.ndarray) -> np.ndarray:
 
 
 def plan(classified: Classified, factor: float = 1.0) -> SegmentPlan:
-    """Discretise every segment for a level whose sizes are the defaults divided by factor."""
+    """Discretise every segment for a level whose sizes are the level-0 sizes / factor
+    (the whole size function scales, growth included, so nodes grow as factor²)."""
     part = classified.partition
     extent = part.extent
-    h_max, h_junction = H_MAX * extent / factor, H_JUNCTION * extent / factor
+    h_max, h_junction = H_MAX * extent, H_JUNCTION * extent
     segments = list(part.segments())
     seg_array = np.array(segments, int)
     junctions = junction_vertices(classified)
@@ -116,21 +117,21 @@ def plan(classified: Classified, factor: float = 1.0) -> SegmentPlan:
                                     np.column_stack([junctions, junctions]))
     vertex_size = np.minimum(h_junction, 0.5 * lfs_vertex)
     tree = cKDTree(vertex_xy)
-    inner = _discretise(part.points, seg_array, tree, vertex_size, h_max)
-    result = SegmentPlan(inner, np.empty(0), h_max, junctions)
-    result._tree, result._vertex_size = tree, vertex_size
+    inner = _discretise(part.points, seg_array, tree, vertex_size, h_max, factor)
+    result = SegmentPlan(inner, np.empty(0), h_max / factor, junctions)
+    result._tree, result._vertex_size, result._factor = tree, vertex_size, factor
     result.point_size = result.size_at(part.points)
     return result
 
 
-def _discretise(points, seg_array, tree, vertex_size, h_max) -> dict:
+def _discretise(points, seg_array, tree, vertex_size, h_max, factor) -> dict:
     t = np.linspace(0.0, 1.0, SAMPLES)
     a, b = points[seg_array[:, 0]], points[seg_array[:, 1]]
     xy = (a[:, None, :] + t[None, :, None] * (b - a)[:, None, :]).reshape(-1, 2)
     own = np.repeat(seg_array, SAMPLES, axis=0)
     h = _graded(xy, tree, vertex_size, h_max)
     lfs = local_feature_size(points, seg_array, xy, own)
-    h = np.minimum(h, THIN_ASPECT * lfs).reshape(len(seg_array), SAMPLES)
+    h = np.minimum(h, THIN_ASPECT * lfs).reshape(len(seg_array), SAMPLES) / factor
     length = np.linalg.norm(b - a, axis=1)
     inner = {}
     for k, seg in enumerate(map(tuple, seg_array)):

@@ -21,7 +21,15 @@ from coldseam.errors import LimitExceeded
 from coldseam.schema.evaluation import EvaluationRequest
 from coldseam.thermal import results
 from coldseam.thermal.field import field_document
-from coldseam.thermal.levels import ISO_RULE, TARGETS, LevelFigures, compare, met, mesh_levels
+from coldseam.thermal.levels import (
+    ISO_RULE,
+    TARGETS,
+    LevelFigures,
+    compare,
+    mesh_levels,
+    met,
+    tail_estimate,
+)
 from coldseam.thermal.model import ThermalModel, prepare
 from coldseam.thermal.psi import FlankingU, flanking_values
 from coldseam.thermal.solve import LevelSolution, solve_level
@@ -72,7 +80,7 @@ def _certify(model: ThermalModel, flanking: list[FlankingU], pair, report: Progr
             compare(levels[-1], figures)
         levels.append(figures)
         report("solving", min(0.85, 0.1 + 0.1 * (k + 1)))
-        if met(figures, options.accuracy):
+        if met(levels, options.accuracy):
             break
         if k + 1 >= options.max_levels:
             warnings.append(f"refinement stopped at the level limit ({options.max_levels}) "
@@ -97,7 +105,9 @@ def _result(model, flanking, pair, levels, solution: LevelSolution, warnings) ->
         "converged": bool(final.relative_change is not None and
                           final.relative_change < ISO_RULE),
         "target": {"relative_change": flow_target, "temperature_change": temperature_target},
-        "target_met": met(final, options.accuracy),
+        "target_met": met(levels, options.accuracy),
+        "estimated_remaining_change": tail_estimate(
+            [level.relative_change for level in levels[1:]]),
         "compared_with_nodes": levels[-2].nodes if len(levels) > 1 else None,
         "levels": [level.as_dict() for level in levels],
     }

@@ -61,11 +61,37 @@ def compare(previous: LevelFigures, current: LevelFigures) -> None:
         current.temperature_change = abs(current.min_temperature - previous.min_temperature)
 
 
-def met(figures: LevelFigures, accuracy: str) -> bool:
+def tail_estimate(changes: list[float | None]) -> float | None:
+    """Estimated distance of the last level from the limit, from the last two changes.
+
+    With a geometric ratio r = Δₖ/Δₖ₋₁ the remaining change is Δₖ·r/(1 − r). None when there
+    are fewer than two changes or they do not shrink (r ≥ 0.9): no estimate can be trusted.
+    """
+    if len(changes) < 2 or changes[-1] is None or changes[-2] is None:
+        return None
+    if changes[-2] == 0:
+        return 0.0 if changes[-1] == 0 else None
+    ratio = changes[-1] / changes[-2]
+    if ratio >= 0.9:
+        return None
+    ratio = max(ratio, 0.25)  # levels are not nested: do not trust a lucky small ratio
+    return changes[-1] * ratio / (1 - ratio)
+
+
+def met(levels: list[LevelFigures], accuracy: str) -> bool:
+    """Target met: the last change and the estimated remaining change are both below it,
+    for the heat flow (relative) and the minimum interior surface temperature (K)."""
     flow_target, temperature_target = TARGETS[accuracy]
-    if figures.relative_change is None:
+    flow = [level.relative_change for level in levels[1:]]
+    temperature = [level.temperature_change for level in levels[1:]]
+    if not flow or flow[-1] is None or flow[-1] >= flow_target:
         return False
-    ok = figures.relative_change < flow_target
-    if figures.temperature_change is not None:
-        ok = ok and figures.temperature_change < temperature_target
-    return ok
+    tail = tail_estimate(flow)
+    if tail is None or flow[-1] + tail >= flow_target:
+        return False
+    if levels[-1].min_temperature is None:
+        return True
+    if temperature[-1] is None or temperature[-1] >= temperature_target:
+        return False
+    tail = tail_estimate(temperature)
+    return tail is not None and temperature[-1] + tail < temperature_target
