@@ -82,7 +82,9 @@ function layerRow(layer, index, library) {
   row.showError = (message) => { error.hidden = !message; replace(error, message || ""); };
   row.el = h("tr", { "data-layer": layer.name },
     h("th", { scope: "row" }, h("span", { class: "layer-name" }, layer.name),
-      h("span", { class: "muted" }, layerContent(layer))),
+      h("span", { class: "muted" }, layerContent(layer)),
+      (layer.problems || []).map((p) => h("span", { class: "layer-problem", testid: "layer-problem" },
+        typeof p === "string" ? p : p.message || JSON.stringify(p)))),
     h("td", {}, role), h("td", {}, details, error));
   return row;
 }

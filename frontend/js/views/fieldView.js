@@ -48,9 +48,9 @@ function prepare(field) {
 }
 
 function draw(canvas, overlay, surface, model, view) {
-  if (!view) return;
   const width = surface.clientWidth;
   const height = surface.clientHeight;
+  if (!view || !width || !height || !surface.isConnected) return;
   const dpr = window.devicePixelRatio || 1;
   canvas.width = Math.round(width * dpr);
   canvas.height = Math.round(height * dpr);
@@ -75,16 +75,25 @@ function pieces(field, view) {
 
 function isothermPaths(model, view) {
   const step = model.levels.length > 6 ? 2 : 1;
+  const placed = [];
   return s("g", { class: "isotherms" }, model.lines.map(({ level, lines }, k) => s("g", {},
     lines.map((line) => s("path", { d: linePath(view, line), class: "isotherm" })),
-    k % step === 0 ? isothermLabel(level, lines, view) : null)));
+    k % step === 0 ? isothermLabel(level, lines, view, placed) : null)));
 }
 
-function isothermLabel(level, lines, view) {
+const LABEL_SPOTS = [0.5, 0.3, 0.7, 0.15, 0.85, 0.4, 0.6];
+
+/** A label on the longest piece of an isotherm, where it keeps clear of labels placed so far. */
+function isothermLabel(level, lines, view, placed) {
   const longest = lines.reduce((a, b) => (b.length > (a?.length || 0) ? b : a), null);
   if (!longest || longest.length < 4) return null;
-  const [x, y] = toScreen(view, ...longest[Math.floor(longest.length / 2)]);
-  return s("text", { x, y: y - 3, class: "isotherm-label", "text-anchor": "middle" }, `${fixed(level, 1)}°`);
+  for (const f of LABEL_SPOTS) {
+    const [x, y] = toScreen(view, ...longest[Math.floor(f * (longest.length - 1))]);
+    if (placed.some(([px, py]) => Math.hypot(px - x, py - y) < 34)) continue;
+    placed.push([x, y]);
+    return s("text", { x, y: y - 3, class: "isotherm-label", "text-anchor": "middle" }, `${fixed(level, 1)}°`);
+  }
+  return null;
 }
 
 function edges(model, view) {

@@ -19,14 +19,18 @@ export function attachPanZoom(surface, getBox, draw) {
     frame = requestAnimationFrame(() => draw(view));
   };
   const set = (next) => { view = next; schedule(); };
-  const refit = () => set(fitView(getBox(), ...size()));
+  const refit = () => {
+    if (surface.isConnected && surface.clientWidth) set(fitView(getBox(), ...size()));
+  };
   const zoom = (factor, sx, sy) => {
+    if (!view) return;
     const [w, hgt] = size();
     set(zoomAt(view, factor, sx ?? w / 2, sy ?? hgt / 2));
   };
   wheel(surface, zoom);
-  drag(surface, (dx, dy) => set(panBy(view, dx, dy)));
-  keys(surface, zoom, (dx, dy) => set(panBy(view, dx, dy)), refit);
+  const pan = (dx, dy) => view && set(panBy(view, dx, dy));
+  drag(surface, pan);
+  keys(surface, zoom, pan, refit);
   new ResizeObserver(() => refit()).observe(surface);
   const toolbar = h("div", { class: "zoom-tools", role: "group", "aria-label": "Zoom" },
     h("button", { type: "button", title: "Zoom in", "aria-label": "Zoom in", onclick: () => zoom(STEP) }, "+"),

@@ -15,10 +15,10 @@ function tile(label, value, unit, testid, extra) {
 }
 
 /** Pass/fail badge of the condensation verdict, with the criterion in words. */
-export function verdictBadge(c) {
-  if (!c || !c.verdict) return h("span", { class: "badge badge-none", testid: "verdict" }, "not assessed");
+export function verdictBadge(c, testid = "verdict") {
+  if (!c || !c.verdict) return h("span", { class: "badge badge-none", testid }, "not assessed");
   const pass = c.verdict === "pass";
-  return h("span", { class: `badge ${pass ? "badge-pass" : "badge-fail"}`, testid: "verdict",
+  return h("span", { class: `badge ${pass ? "badge-pass" : "badge-fail"}`, testid,
     title: `fRsi ${fixed(c.fRsi, 3)} against the critical ${fixed(c.fRsi_critical, 3)}` },
   h("span", { "aria-hidden": "true" }, pass ? "\u2713 " : "\u2717 "), pass ? "Pass" : "Fail");
 }
@@ -73,7 +73,7 @@ function condensationCard(result) {
     [`Lowest surface temperature, ${env}${x.side ? ` (${x.side})` : ""}`, fixed(x.min_temperature, 2), "°C"]);
   if (!c) return card("Surface temperatures", pairs(surfaces));
   return card("Condensation and mould (ISO 13788)",
-    h("p", { class: "verdict-line" }, verdictBadge(c), ` fRsi ${fixed(c.fRsi, 3)} ${c.verdict === "pass" ? "≥" : "<"} ${fixed(c.fRsi_critical, 3)}`),
+    h("p", { class: "verdict-line" }, verdictBadge(c, "verdict-detail"), ` fRsi ${fixed(c.fRsi, 3)} ${c.verdict === "pass" ? "≥" : "<"} ${fixed(c.fRsi_critical, 3)}`),
     pairs([...surfaces,
       ["θsi,min at the condensation Rsi", fixed(c.min_temperature, 2), "°C"],
       ["at", pointMm(c.at), ""],

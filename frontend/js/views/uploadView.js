@@ -5,20 +5,24 @@ import { ApiError, importDxf, listMaterials } from "../api.js";
 import { h, replace } from "../dom.js";
 import { assessPanel } from "./assess.js";
 import { mappingTable } from "./dxfMapping.js";
+import { flankingEditor } from "./flanking.js";
 import { placeProblems, problemList, showProblems } from "./problems.js";
 import { sectionPreview } from "./sectionPreview.js";
 
 /** Render the upload flow into `root`. */
 export function uploadView(root) {
-  const state = { request: null, materials: null };
+  const state = { request: null, materials: null, flanking: null };
   const stage = h("div", { class: "stage" }, h("p", { class: "placeholder" },
     "The section appears here once a file is read."));
   const problems = problemList();
   const mapping = h("div", { class: "mapping" });
-  const assess = assessPanel(() => state.request);
+  const flankBox = h("div", {});
+  const assess = assessPanel(() => fullRequest(state), (p) => (state.flanking ? state.flanking.place(p) : p));
   assess.setReady(false);
   const show = (request, extra = []) => {
     state.request = request;
+    state.flanking = flankingEditor(request.psi, request.section?.unit || "mm");
+    replace(flankBox, state.flanking.el);
     replace(stage, safePreview(request.section, state.materials || []), extra);
     assess.setReady(true);
   };
@@ -29,8 +33,19 @@ export function uploadView(root) {
   const zone = dropZone(fileInput, (file) => readFile(file, ctx));
   replace(root, h("div", { class: "workspace" }, h("div", { class: "panel" },
     h("section", { class: "card" }, h("h2", { class: "card-title" }, "Section file"), zone, problems),
-    mapping, assess.el), stage));
+    mapping, flankBox, assess.el), stage));
   return () => {};
+}
+
+/** The request to evaluate: the file's, with the flanking elements of the editor. */
+function fullRequest(state) {
+  if (!state.request) return null;
+  const { psi, bad } = state.flanking ? state.flanking.read() : { psi: state.request.psi, bad: false };
+  if (bad) return null;
+  const out = { ...state.request };
+  if (psi) out.psi = { ...(state.request.psi || {}), ...psi };
+  else delete out.psi;
+  return out;
 }
 
 function dropZone(fileInput, onFile) {
@@ -59,6 +74,7 @@ function safePreview(section, library) {
 
 async function readFile(file, ctx) {
   ctx.state.request = null;
+  ctx.state.flanking = null;
   ctx.assess.setReady(false);
   showProblems(ctx.problems, []);
   replace(ctx.mapping);
@@ -112,7 +128,7 @@ function mappingStep(file, answer, ctx) {
     h("p", { class: "hint" }, `Say what each layer of ${file.name} stands for.`),
     h("div", { class: "field" }, h("label", { for: "dxf-unit" },
       answer.unit ? `Drawing unit (the file says ${answer.unit})` : "Drawing unit (the file does not say)"), unit, unitError),
-    table.el, h("div", { class: "actions" }, button), list));
+    warningList(answer.warnings, "inspect-warnings"), table.el, h("div", { class: "actions" }, button), list));
 }
 
 async function buildSection(file, table, unit, unitError, list, ctx) {
@@ -131,8 +147,14 @@ async function buildSection(file, table, unit, unitError, list, ctx) {
   }
 }
 
+function warningList(warnings, testid) {
+  if (!warnings || !warnings.length) return null;
+  return h("ul", { class: "warning-list warnings-inline", testid },
+    warnings.map((w) => h("li", {}, typeof w === "string" ? w : w.message || JSON.stringify(w))));
+}
+
 function warningsBlock(warnings) {
   if (!warnings || !warnings.length) return [];
   return h("section", { class: "card warnings" }, h("h2", { class: "card-title" }, "Import warnings"),
-    h("ul", { testid: "import-warnings" }, warnings.map((w) => h("li", {}, typeof w === "string" ? w : w.message || JSON.stringify(w)))));
+    warningList(warnings, "import-warnings"));
 }
