@@ -24,13 +24,13 @@ LAYERS = [
     ("RENDER", 0, 0, 15, 2900),
     ("MINERAL-WOOL", 15, 0, 155, 2900),
     ("BLOCKWORK", 155, 0, 355, 2000),
-    ("CONCRETE", 155, 2000, 1400, 2250),
+    ("CONCRETE", 155, 2000, 1700, 2250),
     ("BLOCKWORK", 155, 2250, 355, 2900),
-    ("PIR", 355, 2250, 1400, 2410),
+    ("PIR", 355, 2250, 1700, 2410),
     ("PIR", 355, 2410, 415, 2900),
     ("PIR", 0, 2900, 415, 2960),
     ("PLASTER", 355, 0, 368, 2000),
-    ("PLASTER", 368, 1987, 1400, 2000),
+    ("PLASTER", 368, 1987, 1700, 2000),
 ]
 LAYER_MAP = {
     "RENDER": {"material": "render", "conductivity": 0.87},
@@ -65,10 +65,10 @@ def build() -> ezdxf.document.Drawing:
     batten = doc.blocks.new("BATTEN-50x38")
     batten.add_lwpolyline(rectangle(0, 0, 38, 50), close=True, dxfattribs={"layer": "0"})
     msp.add_blockref("BATTEN-50x38", (365, 2850), dxfattribs={"layer": "TIMBER"})
-    msp.add_lwpolyline([(0, 0), (0, 2960), (415, 2960), (415, 2410), (1400, 2410)],
+    msp.add_lwpolyline([(0, 0), (0, 2960), (415, 2960), (415, 2410), (1700, 2410)],
                        dxfattribs={"layer": "SURF-EXT"})
     msp.add_line((368, 0), (368, 1987), dxfattribs={"layer": "SURF-INT-WALL"})
-    msp.add_line((368, 1987), (1400, 1987), dxfattribs={"layer": "SURF-INT-CEILING"})
+    msp.add_line((368, 1987), (1700, 1987), dxfattribs={"layer": "SURF-INT-CEILING"})
     msp.add_text("Harrowgate Lane Library - parapet junction (demo, invented)", height=40,
                  dxfattribs={"layer": "NOTES", "insert": (0, 3100)})
     return doc
