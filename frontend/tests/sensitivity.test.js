@@ -25,3 +25,8 @@ test("bars sit on a shared zero line and fill the plot", () => {
   assert.deepEqual([bars[0].start, bars[0].width], [0.25, 0.75]);
   assert.deepEqual([bars[1].start, bars[1].width], [0, 0.25]);
 });
+
+test("rounding noise counts as zero", () => {
+  const { bars } = sensitivityBars([{ material: "a", dpsi_dlnlambda: 3e-17 }, { material: "b", dpsi_dlnlambda: 0.01 }]);
+  assert.deepEqual(bars.map((b) => b.value), [0.01, 0]);
+});

@@ -2,13 +2,16 @@
 // (or of L2D when ψ is not computed) per unit relative change of its conductivity.
 
 /** [{label, value}] sorted by magnitude, with the quantity shown; empty when nothing to show. */
+/** Sensitivities smaller than this (W/(m·K)) are rounding noise of the solve: shown as zero. */
+export const NOISE = 1e-9;
+
 export function sensitivityBars(sensitivities) {
   if (!Array.isArray(sensitivities) || !sensitivities.length) return { quantity: null, bars: [] };
   const hasPsi = sensitivities.some((s) => Number.isFinite(s.dpsi_dlnlambda));
   const key = hasPsi ? "dpsi_dlnlambda" : "dL2D_dlnlambda";
   const bars = sensitivities
     .filter((s) => Number.isFinite(s[key]))
-    .map((s) => ({ label: String(s.material ?? s.id ?? "?"), value: s[key] }))
+    .map((s) => ({ label: String(s.material ?? s.id ?? "?"), value: Math.abs(s[key]) < NOISE ? 0 : s[key] }))
     .sort((a, b) => Math.abs(b.value) - Math.abs(a.value));
   return { quantity: hasPsi ? "psi" : "L2D", bars };
 }

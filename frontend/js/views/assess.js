@@ -8,8 +8,8 @@ import { numberField } from "./inputs.js";
 import { placeProblems, problemList, showProblems } from "./problems.js";
 
 const CRITERIA = [
-  ["climate", "From the indoor climate (ISO 13788, surface RH ≤ 80 %)"],
-  ["fixed", "A fixed critical fRsi"],
+  ["climate", "Mould limit of the indoor climate"],
+  ["fixed", "A fixed critical value"],
 ];
 
 function select(name, label, options, value) {
@@ -42,9 +42,9 @@ export function assessPanel(getRequest, onProblems = (p) => p) {
     description: "Indoor relative humidity" }, noop);
   const fixed = numberField({ name: "criterion", min: 0.01, max: 0.99, default: start.criterion,
     description: "Critical fRsi" }, noop);
-  const mode = select("criterion_mode", "fRsi criterion", CRITERIA, start.mode);
+  const mode = select("criterion_mode", "Critical fRsi", CRITERIA, start.mode);
   const accuracy = select("accuracy", "Mesh convergence",
-    [["default", "Tight (ψ and heat flow within 0.1 %)"], ["iso", "ISO 10211 rule (1 %)"]], "default");
+    [["default", "Tight: 0.1 % and 0.01 K"], ["iso", "ISO 10211 rule: 1 %"]], "default");
   const sync = () => { fixed.el.hidden = mode.el.value !== "fixed"; };
   mode.el.addEventListener("input", sync);
   sync();
@@ -54,7 +54,8 @@ export function assessPanel(getRequest, onProblems = (p) => p) {
   button.addEventListener("click", () =>
     evaluate(getRequest, { rh, fixed, mode, accuracy }, button, list, fields, onProblems));
   const el = h("section", { class: "card assess" }, h("h2", { class: "card-title" }, "Assessment"),
-    rh.el, mode.wrap, fixed.el, accuracy.wrap, h("div", { class: "actions" }, button), list);
+    rh.el, mode.wrap, h("p", { class: "hint field" }, "The mould limit is the fRsi at which the surface reaches 80 % relative humidity (ISO 13788)."),
+    fixed.el, accuracy.wrap, h("div", { class: "actions" }, button), list);
   return { el, setReady: (ready) => { button.disabled = !ready; } };
 }
 

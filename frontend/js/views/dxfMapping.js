@@ -85,7 +85,8 @@ function layerRow(layer, index, library) {
       h("span", { class: "muted" }, layerContent(layer)),
       (layer.problems || []).map((p) => h("span", { class: "layer-problem", testid: "layer-problem" },
         typeof p === "string" ? p : p.message || JSON.stringify(p)))),
-    h("td", {}, role), h("td", {}, details, error));
+    h("td", {}, h("label", { class: "mini role" }, h("span", {}, "Stands for"), role), details, error));
+  row.el.addEventListener("input", () => row.showError(""));
   return row;
 }
 
@@ -96,8 +97,7 @@ function layerRow(layer, index, library) {
 export function mappingTable(layers, library) {
   const rows = layers.map((layer, i) => layerRow(layer, i, library));
   const table = h("table", { class: "layer-table", testid: "layer-mapping" },
-    h("thead", {}, h("tr", {}, h("th", { scope: "col" }, "Layer"), h("th", { scope: "col" }, "Is"),
-      h("th", { scope: "col" }, "Details"))),
+    h("thead", {}, h("tr", {}, h("th", { scope: "col" }, "Layer"), h("th", { scope: "col" }, "What it is"))),
     h("tbody", {}, rows.map((r) => r.el)));
   const read = () => {
     const layerMap = {};

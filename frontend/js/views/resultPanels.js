@@ -93,20 +93,27 @@ function probesCard(probes) {
 
 function meshCard(mesh) {
   if (!mesh) return null;
+  const dash = (v, f) => (v === null || v === undefined ? "—" : f(v));
   const levels = (mesh.levels || []).map((l, i) => [String(i + 1), String(l.nodes), sig(l.heat_flow, 6),
-    l.psi === null || l.psi === undefined ? "—" : fixed(l.psi, 5), fixed(l.min_temperature, 3),
-    l.relative_change === null || l.relative_change === undefined ? "—" : percent(l.relative_change, 3)]);
+    dash(l.psi, (v) => fixed(v, 5)), dash(l.min_temperature, (v) => fixed(v, 3)),
+    dash(l.relative_change, (v) => percent(v, 3)), dash(l.temperature_change, (v) => fixed(v, 3))]);
   const status = mesh.converged ? "within the ISO 10211 1 % rule" : "NOT within the ISO 10211 1 % rule";
+  const tone = !mesh.converged ? "bad-line" : mesh.target_met === false ? "warn-line" : "ok-line";
   return card("Mesh convergence",
-    h("p", { class: mesh.converged ? "ok-line" : "bad-line", testid: "convergence" },
+    h("p", { class: tone, testid: "convergence" },
       `${mesh.nodes} nodes, ${mesh.elements} ${mesh.element || ""} elements; last change ${percent(mesh.relative_change, 3)} — ${status}`
       + (mesh.target_met === false ? "; the requested accuracy was not reached" : "")),
-    levels.length ? table(["Level", "Nodes", "Heat flow W/m", "ψ W/(m·K)", "θsi,min °C", "Change"], levels, { testid: "levels" }) : null);
+    levels.length ? table(["Level", "Nodes", "Heat flow W/m", "ψ W/(m·K)", "θsi,min °C", "Δ flow", "Δθ K"], levels, { testid: "levels" }) : null);
 }
 
 function sensitivityCard(result) {
   const { quantity, bars } = sensitivityBars(result.sensitivities);
   if (!bars.length) return null;
+  const symbol = quantity === "psi" ? "ψ" : "L2D";
+  if (bars.every((b) => b.value === 0)) {
+    return card(`Sensitivity of ${symbol} to λ`, h("p", { class: "muted", testid: "sensitivity-none" },
+      `${symbol} does not change with the λ of any material here (all ∂${symbol}/∂ln λ below 1e-9 W/(m·K)).`));
+  }
   const layout = barLayout(bars);
   const rowH = 26;
   const width = 320;
@@ -120,8 +127,8 @@ function sensitivityCard(result) {
       class: b.value >= 0 ? "bar-pos" : "bar-neg" }),
     s("text", { x: labelW + plotW + 6, y: i * rowH + 18, class: "bar-value" }, sig(b.value, 3)))),
   s("line", { x1: labelW + layout.zero * plotW, x2: labelW + layout.zero * plotW, y1: 2, y2: bars.length * rowH + 6, class: "bar-zero" }));
-  return card(`Sensitivity of ${quantity === "psi" ? "ψ" : "L2D"} to λ`,
-    h("p", { class: "hint" }, `∂${quantity === "psi" ? "ψ" : "L2D"}/∂ln λ in W/(m·K): roughly the change for λ 100 % higher; a 10 % change of λ moves it by about a tenth of the bar.`), svg);
+  return card(`Sensitivity of ${symbol} to λ`,
+    h("p", { class: "hint" }, `∂${symbol}/∂ln λ in W/(m·K): roughly the change for λ 100 % higher; a 10 % change of λ moves it by about a tenth of the bar.`), svg);
 }
 
 /** Warnings, always shown. */

@@ -21,7 +21,7 @@ export function sectionPreview(section, library = []) {
   surface.addEventListener("pointerleave", () => { tip.hidden = true; });
   return h("figure", { class: "drawing" },
     h("div", { class: "drawing-head" }, h("span", { class: "drawing-title" },
-      section.name || "Section", ` · ${section.unit}`), zoom.toolbar),
+      section.name || "Section", section.unit ? ` · ${section.unit}` : ""), zoom.toolbar),
     surface, legend(model));
 }
 

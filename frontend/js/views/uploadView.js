@@ -50,8 +50,7 @@ function fullRequest(state) {
 
 function dropZone(fileInput, onFile) {
   const zone = h("div", { class: "dropzone", testid: "dropzone" },
-    h("p", {}, "Drop a section JSON or a DXF drawing here"),
-    h("label", { for: "section-file", class: "button-like" }, "Choose a file…"), fileInput,
+    h("label", { for: "section-file", class: "drop-label" }, "Drop a section JSON or a DXF drawing here, or choose one"), fileInput,
     h("p", { class: "hint" }, "JSON: a section model or a whole evaluation request (model v1). DXF: closed shapes per material layer, lines along exposed surfaces per environment layer."));
   zone.addEventListener("dragover", (e) => { e.preventDefault(); zone.classList.add("over"); });
   zone.addEventListener("dragleave", () => zone.classList.remove("over"));
@@ -106,7 +105,7 @@ function asRequest(data) {
 async function inspectDxf(file, ctx) {
   try {
     const answer = await importDxf(file);
-    if (answer.section) return ctx.show({ section: answer.section }, warningsBlock(answer.warnings));
+    if (answer.section) return ctx.show({ section: named(answer.section, file) }, warningsBlock(answer.warnings));
     mappingStep(file, answer, ctx);
   } catch (err) {
     if (!(err instanceof ApiError)) throw err;
@@ -120,6 +119,7 @@ function mappingStep(file, answer, ctx) {
     h("option", { value: "" }, "— choose —"), h("option", { value: "mm" }, "millimetres (mm)"),
     h("option", { value: "m" }, "metres (m)"));
   unit.value = answer.unit || "";
+  unit.addEventListener("input", () => { unitError.hidden = true; });
   const unitError = h("p", { class: "field-error", hidden: true, role: "alert", testid: "field-error", "data-field": "unit" });
   const list = problemList();
   const button = h("button", { type: "button", class: "secondary", testid: "build-section" }, "Build section");
@@ -139,12 +139,16 @@ async function buildSection(file, table, unit, unitError, list, ctx) {
   showProblems(list, []);
   try {
     const answer = await importDxf(file, layerMap, unit.value);
-    ctx.show({ section: answer.section }, warningsBlock(answer.warnings));
+    ctx.show({ section: named(answer.section, file) }, warningsBlock(answer.warnings));
   } catch (err) {
     if (!(err instanceof ApiError)) throw err;
     const unitField = { name: "unit", showError: (m) => { unitError.hidden = !m; replace(unitError, m || ""); } };
     showProblems(list, placeProblems(err.problems, [...table.fields, unitField]));
   }
+}
+
+function named(section, file) {
+  return { name: `Drawing ${file.name}`, ...section };
 }
 
 function warningList(warnings, testid) {
