@@ -98,7 +98,8 @@ def _check(p: dict[str, Any]) -> None:
     if _floor_bottom(p) <= -p["foundation_depth"]:
         raise invalid("foundation_depth", "the floor construction (slab and insulation) must "
                       "end above the foundation bottom: deepen the foundation")
-    if p["perimeter_insulation_depth"] > p["foundation_depth"]:
+    has_perimeter = p["perimeter_insulation_thickness"] > 0
+    if has_perimeter and p["perimeter_insulation_depth"] > p["foundation_depth"]:
         raise invalid("perimeter_insulation_depth", f"perimeter insulation "
                       f"({p['perimeter_insulation_depth']:g} mm deep) must not reach below the "
                       f"foundation ({p['foundation_depth']:g} mm)")

@@ -4,10 +4,10 @@ boundary path lies on its outline and every flanking cut runs across the section
 exterior to an interior surface."""
 
 import pytest
-from hypothesis import HealthCheck, given, reject, settings
-from hypothesis import strategies as st
+from hypothesis import HealthCheck, given, settings
 from shapely.geometry import LineString, Point, Polygon
 from shapely.ops import unary_union
+from template_strategies import CROSS_CHECKED, build_or_skip, parameters
 
 from coldseam.errors import InvalidSection
 from coldseam.geometry.outline import classify
@@ -16,40 +16,6 @@ from coldseam.schema import parse_request
 from coldseam.templates import build, get_template, list_templates
 
 TOLERANCE = 1e-3  # mm
-
-#: Parameters whose InvalidSection is a cross-parameter rule: such draws are skipped; any
-#: other InvalidSection fails the test. (The rules themselves: test_template_registry.py.)
-CROSS_CHECKED = {
-    "balcony": {"break_thickness"},
-    "window_reveal": {"frame_offset", "reveal_insulation_thickness"},
-    "ground_floor": {"foundation_depth", "perimeter_insulation_depth"},
-}
-
-
-def parameters(template_id: str) -> st.SearchStrategy[dict]:
-    """Any combination of in-range values; materials as library default or a λ."""
-    fields = {}
-    for p in get_template(template_id).parameters:
-        if p.kind == "number" and p.min_nonzero is not None:
-            fields[p.name] = st.one_of(st.just(0.0), st.floats(p.min_nonzero, p.max))
-        elif p.kind == "number":
-            fields[p.name] = st.floats(p.min, p.max, allow_nan=False)
-        elif p.kind == "choice":
-            fields[p.name] = st.sampled_from(p.options)
-        else:
-            fields[p.name] = st.sampled_from([p.default, 0.04, 2.0])
-    return st.fixed_dictionaries(fields)
-
-
-def build_or_skip(template_id: str, params: dict) -> dict:
-    try:
-        return build(template_id, params)
-    except InvalidSection as error:
-        name = error.field.removeprefix("/parameters/")
-        if name in CROSS_CHECKED.get(template_id, set()):
-            reject()
-        raise
-
 
 def check_geometry(data: dict) -> None:
     request = parse_request(data)
