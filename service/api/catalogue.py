@@ -99,16 +99,15 @@ async def template_value(template_id: str, request: Request, evaluations: Evalua
     template's (e.g. ``?quantity=psi&insulation_thickness=160``)."""
     if quantity not in QUANTITIES:
         raise InvalidSection(f"quantity must be one of {', '.join(QUANTITIES)}", "/quantity")
-    parameters = {k: query_value(v) for k, v in request.query_params.items()
-                  if k not in RESERVED}
+    given = {k: v for k, v in request.query_params.items() if k not in RESERVED}
+    parameters = {k: query_value(v) for k, v in given.items()}
     built = await run_in_threadpool(build, template_id, parameters)
     parsed = await run_in_threadpool(checked_request, built, settings)
     result = await evaluated(evaluations, owner, parsed, json.dumps(built), request)
     value = pick(result, quantity)
     if format == "csv":
-        names = list(parameters)
-        header = ",".join([*names, quantity])
-        line = ",".join([*(str(parameters[n]) for n in names), number(value)])
+        header = ",".join([*given, quantity])
+        line = ",".join([*given.values(), number(value)])
         return PlainTextResponse(f"{header}\n{line}\n", media_type="text/csv")
     return PlainTextResponse(number(value) + "\n")
 
