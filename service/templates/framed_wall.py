@@ -58,10 +58,10 @@ def build(p: dict[str, Any]) -> dict[str, Any]:
     for role, thickness in layers:
         if thickness > 0:
             regions.append(region(role, rect(x, 0, x + thickness, s)))
-        if role == "cavity_insulation":
-            stud = region("stud", rect(x, (s - w) / 2, x + thickness, (s + w) / 2))
         x += thickness
-    regions.append(stud)
+    stud_from = p["outer_insulation_thickness"] + p["sheathing_thickness"]
+    regions.append(region("stud", rect(stud_from, (s - w) / 2, stud_from + p["stud_depth"],
+                                       (s + w) / 2)))  # drawn last: over the insulation
     boundaries = [boundary("outside", RSE, [(0, 0), (0, s)]),
                   boundary("inside", RSI_HORIZONTAL, [(x, 0), (x, s)])]
     y_bay = (s - w) / 4

@@ -5,6 +5,10 @@ Outer face of the wall insulation at x = 0, room side at x = wall thickness; the
 from the reveal (y = 0) to its cut-off plane. The frame block occupies y from −frame width
 to 0; its glass edge is a cut (adiabatic). The frame's U for ψ is read through the block,
 1 / (Rse + depth/λ + Rsi).
+
+Simplification: the glass edge of the frame is only one frame width from the reveal, so it is
+no ISO 10211 cut-off plane; the engine says so in its warnings. The glazing itself is not
+modelled (ψ here is that of the installed frame block).
 """
 
 from __future__ import annotations
@@ -79,7 +83,8 @@ def build(p: dict[str, Any]) -> dict[str, Any]:
              flanking("frame", bf, (xf, y_frame), (xf + df, y_frame))]
     return request(f"Window reveal, frame {df:g} × {bf:g} mm at {xf:g} mm",
                    "Template window_reveal. The wall and frame lengths are the same in "
-                   "internal and external dimensions.", materials, regions, boundaries,
+                   "internal and external dimensions; the frame's glass edge is modelled "
+                   "adiabatic and the glazing is not modelled.", materials, regions, boundaries,
                    flank, None)
 
 
