@@ -97,7 +97,8 @@ def parse_request(data: Any) -> EvaluationRequest:
 
     Raises InvalidSection with a JSON pointer to the first offending field.
     """
-    if isinstance(data, dict) and "section" not in data and "regions" in data:
+    section_keys = {"unit", "materials", "regions", "environments", "boundaries"}
+    if isinstance(data, dict) and "section" not in data and section_keys & data.keys():
         data = {"section": data}
     try:
         request = EvaluationRequest.model_validate(data)
