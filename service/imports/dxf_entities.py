@@ -24,6 +24,7 @@ logger = logging.getLogger(__name__)
 
 Point = tuple[float, float]
 
+_SPLINE_FRAME = 16  # VERTEX flag: control point of a spline-fit polyline's frame
 #: Entity types whose geometry becomes a shape; any other type is counted and skipped.
 GEOMETRY_TYPES = frozenset(
     {"LINE", "ARC", "CIRCLE", "ELLIPSE", "SPLINE", "LWPOLYLINE", "POLYLINE", "HATCH"}
@@ -171,7 +172,8 @@ def _flatten(entity: DXFGraphic, kind: str, chord: float) -> list[tuple[tuple[Po
 def _old_polyline(entity: DXFGraphic, chord: float) -> list[tuple[tuple[Point, ...], bool]]:
     if entity.is_2d_polyline:
         vertices = [(v.dxf.location.x, v.dxf.location.y, v.dxf.get("bulge", 0.0))
-                    for v in entity.vertices]
+                    for v in entity.vertices
+                    if not v.dxf.get("flags", 0) & _SPLINE_FRAME]  # frame points lie off the curve
         elevation = Vec3(entity.dxf.get("elevation", (0, 0, 0))).z
         return [_polyline(vertices, entity.is_closed, entity.ocs(), elevation, chord)]
     if entity.is_3d_polyline:

@@ -386,3 +386,28 @@ def test_module_examples_run():
     for module in (dxf, dxf_entities):
         result = doctest.testmod(module)
         assert result.attempted > 0 and result.failed == 0
+
+
+def test_arc_and_line_on_an_environment_layer_join_into_one_curved_path():
+    doc = new_doc(4)
+    msp = doc.modelspace()
+    msp.add_lwpolyline([(0, 0, 0), (200, 0, 0), (200, 200, 0), (0, 200, 0)], format="xyb",
+                       close=True, dxfattribs={"layer": "PART"})
+    msp.add_line((0, 0), (200, 0), dxfattribs={"layer": "EXTERIOR"})
+    msp.add_arc((200, 100), 100, -90, 90, dxfattribs={"layer": "EXTERIOR"})  # off the part
+    msp.add_line((0, 0), (0, 200), dxfattribs={"layer": "INTERIOR"})
+    out = import_dxf(to_bytes(doc), PART_MAP, None)
+    (outside,) = [b for b in out["section"]["boundaries"] if b["environment"] == "outside"]
+    path = outside["path"]
+    assert len(path) > 10 and {tuple(path[0]), tuple(path[-1])} == {(0, 0), (200, 200)}
+    assert all(math.dist(p, (200, 100)) == pytest.approx(100, abs=1e-6) for p in path[1:-1]
+               if p[0] > 200)
+
+
+def test_frame_points_of_a_spline_fit_polyline_are_not_outline_vertices():
+    def draw(msp):
+        poly = msp.add_polyline2d(rect(0, 0, 100, 100), close=True,
+                                  dxfattribs={"layer": "PART"})
+        poly.append_vertex((5000, 5000), dxfattribs={"flags": 16})
+    out = import_dxf(one_layer_doc(draw), PART_MAP, None)
+    assert out["section"]["regions"][0]["polygon"] == [list(p) for p in rect(0, 0, 100, 100)]
