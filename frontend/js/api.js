@@ -4,6 +4,22 @@
 import { problems } from "./lib/errors.js";
 
 export const BASE = "api/v1";
+const KEY_STORE = "coldseam.api-key";
+
+/** The bearer key of a server that needs one (kept for this browser tab only). */
+export function apiKey() {
+  return sessionStorage.getItem(KEY_STORE) || "";
+}
+
+export function setApiKey(key) {
+  if (key) sessionStorage.setItem(KEY_STORE, key);
+  else sessionStorage.removeItem(KEY_STORE);
+}
+
+function headers(extra = {}) {
+  const key = apiKey();
+  return key ? { ...extra, Authorization: `Bearer ${key}` } : extra;
+}
 
 export class ApiError extends Error {
   constructor(status, problemList) {
@@ -25,7 +41,7 @@ async function readBody(response) {
 
 /** Fetch `path` under the API base; `json` or `form` is the body. Resolves {status, data}. */
 export async function call(path, { method = "GET", json, form, signal } = {}) {
-  const init = { method, signal, headers: { Accept: "application/json" } };
+  const init = { method, signal, headers: headers({ Accept: "application/json" }) };
   if (json !== undefined) {
     init.body = JSON.stringify(json);
     init.headers["Content-Type"] = "application/json";
@@ -78,6 +94,13 @@ export function importDxf(file, layerMap, unit) {
   if (layerMap) form.append("layer_map", JSON.stringify(layerMap));
   if (unit) form.append("unit", unit);
   return call("imports/dxf", { method: "POST", form }).then((r) => r.data);
+}
+
+/** A resource of the API as a blob URL (for links when the server needs a key). */
+export async function blobUrl(url) {
+  const response = await fetch(url, { headers: headers() });
+  if (!response.ok) throw new ApiError(response.status, problems(await readBody(response), response.status));
+  return URL.createObjectURL(await response.blob());
 }
 
 /** Address of an evaluation's own resource (picture, report) for links. */

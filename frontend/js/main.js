@@ -5,6 +5,7 @@
 //   #/evaluations/<id>     an evaluation's progress and results (shareable)
 
 import { h, replace } from "./dom.js";
+import { installKeyForm } from "./views/keyForm.js";
 import { openView } from "./views/openView.js";
 import { resultView } from "./views/resultView.js";
 import { templateView } from "./views/templateView.js";
@@ -40,5 +41,6 @@ async function render() {
   }
 }
 
+installKeyForm(document.getElementById("key-button"), document.getElementById("key-host"));
 window.addEventListener("hashchange", render);
 render();

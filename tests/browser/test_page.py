@@ -232,3 +232,28 @@ def test_unknown_evaluation_says_so(server, page_factory):
     page = page_factory(1280)
     page.goto(f"{server}/#/evaluations/0000000000000000")
     assert "no evaluation" in page.get_by_test_id("error-message").inner_text()
+
+
+def test_keyboard_reaches_the_inputs_and_zooms_the_drawing(server, page_factory):
+    page = page_factory(1280)
+    page.goto(f"{server}/#/template/wall_corner")
+    page.get_by_test_id("section-preview").wait_for()
+    page.wait_for_function("() => !document.querySelector('[data-testid=evaluate]').disabled")
+    reached = set()
+    for _ in range(60):
+        page.keyboard.press("Tab")
+        reached.add(page.evaluate("() => document.activeElement.dataset.testid || "
+                                  "document.activeElement.getAttribute('aria-label') || ''"))
+    assert {"template-picker", "evaluate", "Zoom in", "Fit to view"} <= reached
+    outline = page.locator("[data-testid=section-preview] path.region").first
+    before = outline.get_attribute("d")
+    page.locator(".surface").first.focus()
+    page.keyboard.press("+")
+    page.wait_for_function("(d) => document.querySelector("
+                           "'[data-testid=section-preview] path.region').getAttribute('d') !== d",
+                           arg=before)
+    page.keyboard.press("0")
+    page.wait_for_function("(d) => document.querySelector("
+                           "'[data-testid=section-preview] path.region').getAttribute('d') === d",
+                           arg=before)
+    assert clean_problems(page) == []

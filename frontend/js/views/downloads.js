@@ -1,7 +1,7 @@
 // Downloads of a result: the JSON document and a CSV of key figures made in the page, and the
 // server's picture and printable report.
 
-import { evaluationUrl } from "../api.js";
+import { apiKey, blobUrl, evaluationUrl } from "../api.js";
 import { blobLink, card, h } from "../dom.js";
 import { keyFigureRows, toCsv } from "../lib/figures.js";
 
@@ -13,8 +13,8 @@ function fileStem(result) {
 /** The downloads card of `result`. */
 export function downloadsCard(result) {
   const stem = fileStem(result);
-  const link = (label, tail, testid, extra = {}) =>
-    h("a", { class: "download", href: evaluationUrl(result.id, tail), testid, ...extra }, label);
+  const link = (label, tail, testid, extra = {}) => keyed(
+    h("a", { class: "download", href: evaluationUrl(result.id, tail), testid, ...extra }, label));
   return card("Downloads", h("ul", { class: "downloads" },
     h("li", {}, blobLink("Result (JSON)", `${stem}.json`, "application/json",
       JSON.stringify(result, null, 2), "download-json")),
@@ -23,4 +23,20 @@ export function downloadsCard(result) {
     h("li", {}, link("Picture (SVG)", "picture.svg", "download-svg", { download: `${stem}.svg` })),
     h("li", {}, link("Picture (PNG)", "picture.png", "download-png", { download: `${stem}.png` })),
     h("li", {}, link("Printable report", "report", "download-report", { target: "_blank", rel: "noopener" }))));
+}
+
+/** With an API key, links cannot carry it: fetch with the key and follow a blob URL instead. */
+function keyed(anchor) {
+  anchor.addEventListener("click", async (event) => {
+    if (!apiKey() || anchor.dataset.fetched) return;
+    event.preventDefault();
+    try {
+      anchor.href = await blobUrl(anchor.href);
+      anchor.dataset.fetched = "1";
+      anchor.click();
+    } catch (err) {
+      anchor.title = err.message;
+    }
+  });
+  return anchor;
 }

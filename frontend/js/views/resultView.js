@@ -25,13 +25,16 @@ export function resultView(root, id) {
 }
 
 async function follow(root, id, signal, ui) {
+  const started = Date.now();
   try {
     for (;;) {
       const doc = await getEvaluation(id, signal);
       if (doc.status === "done") return await showDone(root, doc, signal);
       if (doc.status === "failed") return showFailed(root, doc);
       ui.progress.value = doc.progress ?? 0;
-      ui.stage.textContent = `${doc.status === "queued" ? "Queued" : STAGES[doc.stage] || doc.stage || "Running"} · ${percent(doc.progress ?? 0, 0)}`;
+      const what = doc.status === "queued" ? "Queued" : STAGES[doc.stage] || doc.stage || "Running";
+      const seconds = Math.round((Date.now() - started) / 1000);
+      ui.stage.textContent = `${what} · ${percent(doc.progress ?? 0, 0)} · ${seconds} s`;
       await sleep(POLL_MS, signal);
     }
   } catch (err) {
