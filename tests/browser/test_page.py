@@ -151,6 +151,10 @@ def test_dxf_upload_with_layer_mapping(server, page_factory, tmp_path):
     row("OUTSIDE").get_by_test_id("layer-temperature").fill("-5")
     page.get_by_test_id("dxf-unit").select_option("mm")
     shot(page, "dxf-mapping-1280")
+    page.set_viewport_size({"width": 768, "height": 1024})
+    assert page.evaluate("() => document.documentElement.scrollWidth") <= 768
+    shot(page, "dxf-mapping-768")
+    page.set_viewport_size({"width": 1280, "height": 800})
     page.get_by_test_id("build-section").click()
     page.get_by_test_id("section-preview").wait_for()
     page.get_by_test_id("add-flanking").click()

@@ -12,7 +12,7 @@ import { sectionPreview } from "./sectionPreview.js";
 /** Render the upload flow into `root`. */
 export function uploadView(root) {
   const state = { request: null, materials: null, flanking: null };
-  const stage = h("div", { class: "stage" }, h("p", { class: "placeholder" },
+  const stage = h("div", { class: "stage" }, h("p", { class: "placeholder stage-empty" },
     "The section appears here once a file is read."));
   const problems = problemList();
   const mapping = h("div", { class: "mapping" });
