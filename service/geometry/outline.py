@@ -28,12 +28,14 @@ class Classified:
     probe_points: list[int | None]  # point index of a probe on a vertex/edge, else None
     probe_faces: list[int | None]  # face index containing an interior probe
     probe_xy: np.ndarray  # (K, 2) probe coordinates, metres
+    symmetry: set[tuple[int, int]]  # adiabatic segments on a declared symmetry line
 
 
 def classify(section: Section, partition: Partition) -> Classified:
     tol = TOLERANCE * partition.extent
     paths = [LineString(np.asarray(b.path, float) * section.scale) for b in section.boundaries]
-    for path in paths:
+    for path in paths + [LineString(np.asarray(line, float) * section.scale)
+                         for line in section.symmetry_lines]:
         for x, y in path.coords:
             _split_at(partition, np.array([x, y]), tol)
     probe_points, probe_faces = _place_probes(section, partition, tol)
@@ -43,7 +45,21 @@ def classify(section: Section, partition: Partition) -> Classified:
     _check_connected(section, partition, segments, exposure)
     adiabatic = [s for s in outline if s not in exposure]
     probe_xy = np.array([p.point for p in section.probes], float).reshape(-1, 2) * section.scale
-    return Classified(partition, exposure, adiabatic, probe_points, probe_faces, probe_xy)
+    symmetry = _on_lines(partition, adiabatic, [LineString(np.asarray(line, float) * section.scale)
+                                                for line in section.symmetry_lines], tol)
+    return Classified(partition, exposure, adiabatic, probe_points, probe_faces, probe_xy,
+                      symmetry)
+
+
+def _on_lines(partition, segments, lines, tol) -> set[tuple[int, int]]:
+    pts = partition.points
+    out = set()
+    for seg in segments:
+        a, c = pts[seg[0]], pts[seg[1]]
+        probe = shapely.points([a, c, 0.5 * (a + c)])
+        if any(np.all(shapely.distance(line, probe) <= tol) for line in lines):
+            out.add(seg)
+    return out
 
 
 def _split_at(partition: Partition, p: np.ndarray, tol: float) -> int | None:

@@ -98,6 +98,10 @@ class Section(_Strict):
     environments: list[Environment] = Field(min_length=1)
     boundaries: list[Boundary] = Field(min_length=1)
     probes: list[Probe] = Field(default_factory=list)
+    symmetry_lines: list[list[Point]] = Field(
+        default_factory=list,
+        description="Polylines along which the outline is a symmetry plane: adiabatic like any "
+        "uncovered outline, but not a cut-off plane, so exempt from the cut-off checks.")
 
     @property
     def scale(self) -> float:

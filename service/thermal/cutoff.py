@@ -1,7 +1,7 @@
 """Cut-off plane checks (ISO 10211): flanking parts must be one-dimensional at the cut.
 
-Every chain of adiabatic outline edges that joins an interior to an exterior surface is taken
-for a cut-off plane. Along it the computed temperatures are compared with the 1D solution of
+Every straight chain of adiabatic outline edges that joins an interior to an exterior surface,
+and is not declared a symmetry line, is taken for a cut-off plane. Along it the computed temperatures are compared with the 1D solution of
 the layers the chain crosses (surface resistances at its two ends), and its distance to the
 nearest junction vertex with max(1 m, 3 × the chain's length) [ISO 10211, from memory].
 """
@@ -57,12 +57,25 @@ def check_cutoffs(model: ThermalModel, solution: LevelSolution) -> list[str]:
     junctions = set(junction_vertices(model.classified).tolist())
     for chain in adiabatic_chains(model):
         ends = [_end_side(model, chain[0]), _end_side(model, chain[-1])]
-        if None in ends or ends[0][0] == ends[1][0]:
+        if None in ends or ends[0][0] == ends[1][0] or not _straight(model, chain):
+            continue
+        if all((min(a, b), max(a, b)) in model.classified.symmetry
+               for a, b in zip(chain, chain[1:], strict=False)):
             continue
         if ends[0][0] == "exterior":
             chain, ends = chain[::-1], ends[::-1]
         warnings += _check_chain(model, solution, chain, ends, junctions)
     return warnings
+
+
+def _straight(model: ThermalModel, chain: list[int]) -> bool:
+    pts = model.classified.partition.points[chain]
+    d = pts[-1] - pts[0]
+    span = float(np.linalg.norm(d))
+    if span == 0:
+        return False
+    offsets = np.abs((pts[:, 0] - pts[0, 0]) * d[1] - (pts[:, 1] - pts[0, 1]) * d[0]) / span
+    return bool(np.all(offsets <= 1e-6 * model.classified.partition.extent))
 
 
 def _check_chain(model, solution, chain, ends, junctions) -> list[str]:

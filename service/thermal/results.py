@@ -141,6 +141,8 @@ def condensation_block(model: ThermalModel, solution: LevelSolution) -> dict | N
     exterior = np.flatnonzero(~model.env_interior)
     theta_i = float(temperatures[interior].max())
     theta_e = float(temperatures[exterior].min())
+    if not theta_i > theta_e:
+        return None  # no heating case to judge; skipped with a warning (energy_warnings)
     if len(temperatures) == 2:
         frsi = float(weights[interior[0]])
     else:
@@ -166,12 +168,18 @@ def sensitivities(model, solution: LevelSolution, flanking, pair) -> list[dict]:
 
 
 def energy_warnings(model, solution: LevelSolution) -> list[str]:
+    out = []
     flows = solution.design.heat_flows
     scale = 0.5 * np.abs(flows).sum()
     if scale > 0 and abs(flows.sum()) / scale > BALANCE:
-        return [f"energy balance off by {abs(flows.sum()) / scale:.1e} of the heat flow "
-                "(ISO 10211 asks for under 1e-4)"]
-    return []
+        out.append(f"energy balance off by {abs(flows.sum()) / scale:.1e} of the heat flow "
+                   "(ISO 10211 asks for under 1e-4)")
+    if model.has_condensation_run():
+        temperatures = model.env_temperature
+        if not temperatures[model.env_interior].max() > temperatures[~model.env_interior].min():
+            out.append("no fRsi / condensation check: in this section no interior environment "
+                       "is warmer than the exterior, so a temperature factor means nothing")
+    return out
 
 
 def cutoff_warnings(model, solution: LevelSolution) -> list[str]:
