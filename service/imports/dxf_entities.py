@@ -13,12 +13,17 @@ import math
 from collections.abc import Iterator
 from dataclasses import dataclass, field
 
-import ezdxf.path
 from ezdxf.entities import DXFGraphic, Insert
 from ezdxf.lldxf.const import DXFError
 from ezdxf.math import OCS, Vec3
 
 from coldseam.errors import LimitExceeded
+from coldseam.imports.dxf_curves import (
+    arc_entity_points,
+    circle_points,
+    hatch_loops,
+    polyline_points,
+)
 
 logger = logging.getLogger(__name__)
 
@@ -152,21 +157,26 @@ def _in_drawing_plane(entity: DXFGraphic) -> bool:
 def _flatten(entity: DXFGraphic, kind: str, chord: float) -> list[tuple[tuple[Point, ...], bool]]:
     if kind == "LINE":
         return [(_xy([entity.dxf.start, entity.dxf.end]), False)]
-    if kind == "ARC":
-        sagitta = _sagitta(chord, entity.dxf.radius)
-        return [(_xy(entity.flattening(sagitta)), False)]
-    if kind == "CIRCLE":
-        sagitta = _sagitta(chord, entity.dxf.radius)
-        return [(_xy(entity.flattening(sagitta))[:-1], True)]
+    if kind in ("ARC", "CIRCLE"):
+        centre, radius = Vec3(entity.dxf.center), entity.dxf.radius
+        if kind == "CIRCLE":
+            points = circle_points(centre.x, centre.y, radius, chord)
+        else:
+            points = arc_entity_points(centre.x, centre.y, radius, entity.dxf.start_angle,
+                                       entity.dxf.end_angle, chord)
+        return [(_to_wcs(entity.ocs(), points, centre.z), kind == "CIRCLE")]
     if kind in ("ELLIPSE", "SPLINE"):
         return [_closed_or_open(_xy(entity.flattening(chord, segments=16)))]
     if kind == "LWPOLYLINE":
         vertices = [(x, y, b) for x, y, b in entity.get_points("xyb")]
-        return [_polyline(vertices, entity.closed, entity.ocs(), entity.dxf.elevation, chord)]
+        points = polyline_points(vertices, entity.closed, chord)
+        return [_shape(_to_wcs(entity.ocs(), points, entity.dxf.elevation), entity.closed)]
     if kind == "POLYLINE":
         return _old_polyline(entity, chord)
-    return [_closed_or_open(_xy(path.flattening(chord, segments=16)))
-            for path in ezdxf.path.from_hatch(entity)]
+    ocs_loops, wcs_loops = hatch_loops(entity, chord)
+    elevation = Vec3(entity.dxf.get("elevation", (0, 0, 0))).z
+    return ([(_to_wcs(entity.ocs(), loop, elevation), True) for loop in ocs_loops]
+            + [(_xy(loop), True) for loop in wcs_loops])
 
 
 def _old_polyline(entity: DXFGraphic, chord: float) -> list[tuple[tuple[Point, ...], bool]]:
@@ -175,60 +185,19 @@ def _old_polyline(entity: DXFGraphic, chord: float) -> list[tuple[tuple[Point, .
                     for v in entity.vertices
                     if not v.dxf.get("flags", 0) & _SPLINE_FRAME]  # frame points lie off the curve
         elevation = Vec3(entity.dxf.get("elevation", (0, 0, 0))).z
-        return [_polyline(vertices, entity.is_closed, entity.ocs(), elevation, chord)]
+        points = polyline_points(vertices, entity.is_closed, chord)
+        return [_shape(_to_wcs(entity.ocs(), points, elevation), entity.is_closed)]
     if entity.is_3d_polyline:
-        points = _xy(entity.points())
-        return [(points, True) if entity.is_closed else _closed_or_open(points)]
+        return [_shape(_xy(entity.points()), entity.is_closed)]
     return []  # polyface and polygon meshes carry no 2D outline
 
 
-def _polyline(vertices: list[tuple[float, float, float]], closed: bool, ocs: OCS,
-              elevation: float, chord: float) -> tuple[tuple[Point, ...], bool]:
-    """Vertices with DXF bulges (tan of a quarter of the arc angle, + = counter-clockwise)."""
-    points: list[Point] = []
-    n = len(vertices)
-    for i in range(n if closed else n - 1):
-        x0, y0, bulge = vertices[i]
-        x1, y1, _ = vertices[(i + 1) % n]
-        points.append((x0, y0))
-        if abs(bulge) > 1e-12:
-            points.extend(bulge_points((x0, y0), (x1, y1), bulge, chord))
-    if not closed and n:
-        points.append(vertices[-1][:2])
-    wcs = _xy(ocs.points_to_wcs(Vec3(x, y, elevation) for x, y in points))
-    return (wcs, True) if closed else _closed_or_open(wcs)
+def _to_wcs(ocs: OCS, points: list[Point], elevation: float) -> tuple[Point, ...]:
+    return _xy(ocs.points_to_wcs(Vec3(x, y, elevation) for x, y in points))
 
 
-def bulge_points(start: Point, end: Point, bulge: float, chord: float) -> list[Point]:
-    """Interior points of the arc from start to end with the given bulge.
-
-    >>> [(round(x, 9) + 0.0, round(y, 9)) for x, y in bulge_points((-1, 0), (1, 0), 1.0, 1.0)]
-    [(0.0, -1.0)]
-    """
-    dx, dy = end[0] - start[0], end[1] - start[1]
-    length = math.hypot(dx, dy)
-    if length == 0:
-        return []
-    sweep = 4 * math.atan(bulge)
-    offset = length * (1 - bulge * bulge) / (4 * bulge)  # centre from mid-chord, to the left
-    cx = (start[0] + end[0]) / 2 - dy / length * offset
-    cy = (start[1] + end[1]) / 2 + dx / length * offset
-    radius = math.hypot(start[0] - cx, start[1] - cy)
-    steps = max(1, math.ceil(abs(sweep) / _step_angle(radius, _sagitta(chord, radius))))
-    a0 = math.atan2(start[1] - cy, start[0] - cx)
-    return [(cx + radius * math.cos(a0 + sweep * k / steps),
-             cy + radius * math.sin(a0 + sweep * k / steps)) for k in range(1, steps)]
-
-
-def _sagitta(chord: float, radius: float) -> float:
-    """Chord error for an arc: the absolute tolerance, relaxed to 2e-4 of large radii."""
-    return max(chord, 2e-4 * radius)
-
-
-def _step_angle(radius: float, sagitta: float) -> float:
-    if sagitta >= radius:
-        return math.pi / 2
-    return min(math.pi / 2, 2 * math.acos(1 - sagitta / radius))
+def _shape(points: tuple[Point, ...], closed: bool) -> tuple[tuple[Point, ...], bool]:
+    return (points, True) if closed else _closed_or_open(points)
 
 
 def _closed_or_open(points: tuple[Point, ...]) -> tuple[tuple[Point, ...], bool]:

@@ -16,7 +16,7 @@ import pytest
 from shapely import Polygon
 
 from coldseam.errors import InvalidSection, LimitExceeded
-from coldseam.imports import dxf, dxf_entities
+from coldseam.imports import dxf, dxf_curves, dxf_entities
 from coldseam.imports.dxf import import_dxf
 from coldseam.schema import parse_request
 
@@ -184,7 +184,8 @@ def test_circle_is_polygonised_within_the_chord_error():
     assert all(math.dist(p, (10, 20)) == pytest.approx(radius, abs=1e-6) for p in polygon)  # output rounded to 1e-6 mm
     sagitta = radius * (1 - math.cos(math.pi / n))  # the largest distance chord to arc
     assert sagitta <= dxf.CHORD_MM + 1e-12
-    assert n <= 2 * math.pi / (2 * math.acos(1 - dxf.CHORD_MM / radius)) + 2  # not wasteful
+    # not wasteful: the grid is the fewest vertices meeting the chord error, rounded up to 4k
+    assert n <= 2 * math.pi / (2 * math.acos(1 - dxf.CHORD_MM / radius)) + 4
     parse_request({"section": out["section"]})
 
 
@@ -383,7 +384,7 @@ def test_layer_map_mistakes_name_the_layer(layer_map, field, words):
 
 
 def test_module_examples_run():
-    for module in (dxf, dxf_entities):
+    for module in (dxf, dxf_curves):
         result = doctest.testmod(module)
         assert result.attempted > 0 and result.failed == 0
 
@@ -411,3 +412,30 @@ def test_frame_points_of_a_spline_fit_polyline_are_not_outline_vertices():
         poly.append_vertex((5000, 5000), dxfattribs={"flags": 16})
     out = import_dxf(one_layer_doc(draw), PART_MAP, None)
     assert out["section"]["regions"][0]["polygon"] == [list(p) for p in rect(0, 0, 100, 100)]
+
+
+def test_arc_surface_over_a_circle_shares_the_outline_vertices():
+    def draw(msp):
+        msp.add_circle((0, 0), 100, dxfattribs={"layer": "PART"})
+        msp.add_arc((0, 0), 100, 10, 100, dxfattribs={"layer": "SURFACE"})
+    layer_map = {"PART": PART_MAP["PART"], "SURFACE": INSIDE, "EXTERIOR": OUTSIDE}
+    out = import_dxf(one_layer_doc(draw), layer_map, None)
+    polygon = {tuple(p) for p in out["section"]["regions"][0]["polygon"]}
+    (arc,) = [b["path"] for b in out["section"]["boundaries"] if b["environment"] == "inside"]
+    assert len(arc) > 20
+    assert all(tuple(p) in polygon for p in arc[1:-1])  # the same grid: exactly on the outline
+
+
+def test_hatch_with_an_arc_edge_over_its_bulged_outline_counts_once():
+    def draw(msp):
+        msp.add_lwpolyline([(0, 0, 0), (200, 0, 1.0), (200, 100, 0), (0, 100, 0)], format="xyb",
+                           close=True, dxfattribs={"layer": "PART"})
+        hatch = msp.add_hatch(dxfattribs={"layer": "PART"})
+        edges = hatch.paths.add_edge_path(flags=1)
+        edges.add_line((0, 100), (0, 0))
+        edges.add_line((0, 0), (200, 0))
+        edges.add_arc((200, 50), 50, -90, 90)
+        edges.add_line((200, 100), (0, 100))
+    out = import_dxf(one_layer_doc(draw), PART_MAP, None)
+    assert len(out["section"]["regions"]) == 1
+    assert any("drawn twice counted once" in w for w in out["warnings"])
