@@ -261,3 +261,41 @@ def test_keyboard_reaches_the_inputs_and_zooms_the_drawing(server, page_factory)
                            "'[data-testid=section-preview] path.region').getAttribute('d') === d",
                            arg=before)
     assert clean_problems(page) == []
+
+
+def test_template_error_from_the_api_sits_beside_its_input(server, page_factory):
+    """A 422 naming /parameters/<name> is shown at that input (body built by the API's own
+    error formatter, so the page is tested against the real format)."""
+    from coldseam.api.errors import error_body
+
+    message = "wall_thickness must be between 80 and 500 mm; got 600"
+    body = error_body("InvalidSection", message, "/parameters/wall_thickness", "test")
+    page = page_factory(1280)
+    page.goto(f"{server}/#/template/wall_corner")
+    page.get_by_test_id("section-preview").wait_for()
+    page.route("**/api/v1/templates/wall_corner/section",
+               lambda route: route.fulfill(status=422, content_type="application/json",
+                                           body=json.dumps(body)))
+    page.get_by_test_id("param-wall_thickness").fill("210")
+    error = page.locator("[data-testid=field-error][data-field=wall_thickness]")
+    error.wait_for()
+    assert error.inner_text() == message
+    assert page.get_by_test_id("evaluate").is_disabled()
+
+
+def test_a_result_input_can_be_used_again(server, page_factory):
+    created = api_json(f"{server}/api/v1/evaluations", "POST",
+                       wall_request("Reused wall (invented)"))
+    page = page_factory(1280)
+    page.goto(f"{server}/#/evaluations/{created['id']}")
+    page.get_by_test_id("reuse-input").click()
+    page.get_by_test_id("section-preview").wait_for()
+    assert "#/upload" in page.url
+    assert page.get_by_test_id("flank-u").input_value() == "0.3"
+    page.get_by_test_id("flank-u").fill("0.25")
+    page.get_by_test_id("evaluate").click()
+    wait_results(page)
+    result = result_of(server, page)
+    assert result["id"] != created["id"]
+    assert result["request"]["psi"]["flanking"][0]["u_value"] == 0.25
+    check_figures(page, result)

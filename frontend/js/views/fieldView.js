@@ -26,6 +26,11 @@ export function fieldFigure(field) {
     "Point at the field to read the temperature.");
   const zoom = attachPanZoom(surface, () => model.box, (view) => draw(canvas, overlay, surface, model, view));
   surface.addEventListener("pointermove", (e) => hover(e, surface, readout, model, zoom.view()));
+  const focus = minimumBox(model);
+  if (focus) {
+    zoom.toolbar.prepend(h("button", { type: "button", testid: "zoom-minimum", title: "Zoom to the lowest interior surface temperature",
+      onclick: () => zoom.zoomTo(focus) }, "θsi,min"));
+  }
   return h("figure", { class: "drawing field" },
     h("div", { class: "drawing-head" }, h("span", { class: "drawing-title" }, "Temperature field, design run"), zoom.toolbar),
     h("div", { class: "field-row" }, surface, colourBar(model.lo, model.hi, model.levels)),
@@ -111,6 +116,16 @@ function interiorMinima(field) {
     .map(([env, m]) => ({ kind: "design", env, ...m }));
   if (field.condensation_min) out.push({ kind: "condensation", env: "", ...field.condensation_min });
   return out;
+}
+
+/** A box around the lowest interior surface temperature: a fifth of the section, 0.4 m at least. */
+function minimumBox(model) {
+  const first = interiorMinima(model.field)[0];
+  if (!first) return null;
+  const { x0, y0, x1, y1 } = model.box;
+  const half = Math.max(0.2, 0.1 * Math.max(x1 - x0, y1 - y0));
+  const [x, y] = first.at;
+  return { x0: x - half, y0: y - half, x1: x + half, y1: y + half };
 }
 
 function minMarkers(field, view) {

@@ -8,7 +8,7 @@ const STEP = 1.25;
 
 /**
  * Make `surface` zoomable. `getBox()` gives the world box to fit, `draw(view)` repaints.
- * Returns {toolbar, refit, view()}.
+ * Returns {toolbar, refit, zoomTo(box), view()}.
  */
 export function attachPanZoom(surface, getBox, draw) {
   let view = null;
@@ -37,7 +37,8 @@ export function attachPanZoom(surface, getBox, draw) {
     h("button", { type: "button", title: "Zoom out", "aria-label": "Zoom out", onclick: () => zoom(1 / STEP) }, "\u2212"),
     h("button", { type: "button", title: "Fit to view", "aria-label": "Fit to view", onclick: refit }, "Fit"),
   );
-  return { toolbar, refit, view: () => view };
+  const zoomTo = (box) => { if (surface.clientWidth) set(fitView(box, ...size())); };
+  return { toolbar, refit, zoomTo, view: () => view };
 }
 
 function wheel(surface, zoom) {

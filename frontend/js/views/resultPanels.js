@@ -116,8 +116,8 @@ function sensitivityCard(result) {
   }
   const layout = barLayout(bars);
   const rowH = 26;
-  const width = 320;
-  const labelW = 110;
+  const width = 380;
+  const labelW = Math.min(180, 12 + 6.6 * Math.max(...bars.map((b) => b.label.length)));
   const plotW = width - labelW - 70;
   const svg = s("svg", { viewBox: `0 0 ${width} ${bars.length * rowH + 8}`, class: "barchart", role: "img",
     testid: "sensitivity-chart", "aria-label": `Change of ${quantity} per relative change of each material's λ` },

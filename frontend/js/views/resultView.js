@@ -8,6 +8,7 @@ import { downloadsCard } from "./downloads.js";
 import { fieldFigure } from "./fieldView.js";
 import { problemList, showProblems } from "./problems.js";
 import { figureCards, headline, warningsCard } from "./resultPanels.js";
+import { REUSE_KEY } from "./uploadView.js";
 
 const POLL_MS = 600;
 const STAGES = { geometry: "Checking the geometry", meshing: "Meshing", solving: "Solving",
@@ -97,5 +98,15 @@ function resultHeader(result) {
       h("p", { class: "muted" }, h("span", { class: "mono", testid: "evaluation-id" }, result.id),
         result.created_at ? ` · ${result.created_at.replace("T", " ").replace("Z", " UTC")}` : "",
         result.engine_version ? ` · ${result.engine_version}` : "")),
-    h("div", { class: "share" }, h("a", { href: `#/evaluations/${result.id}`, class: "permalink", testid: "permalink" }, "Permanent link"), copy));
+    h("div", { class: "share" }, reuseButton(result.request),
+      h("a", { href: `#/evaluations/${result.id}`, class: "permalink", testid: "permalink" }, "Permanent link"), copy));
+}
+
+/** Take this evaluation's request to the upload view, to change and evaluate again. */
+function reuseButton(request) {
+  if (!request) return null;
+  return h("button", { type: "button", class: "small", testid: "reuse-input", onclick: () => {
+    sessionStorage.setItem(REUSE_KEY, JSON.stringify(request));
+    location.hash = "#/upload";
+  } }, "Use this input again");
 }

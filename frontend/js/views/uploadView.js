@@ -9,6 +9,9 @@ import { flankingEditor } from "./flanking.js";
 import { placeProblems, problemList, showProblems } from "./problems.js";
 import { sectionPreview } from "./sectionPreview.js";
 
+/** sessionStorage key of a request handed over from a result page. */
+export const REUSE_KEY = "coldseam.reuse-request";
+
 /** Render the upload flow into `root`. */
 export function uploadView(root) {
   const state = { request: null, materials: null, flanking: null };
@@ -34,6 +37,11 @@ export function uploadView(root) {
   replace(root, h("div", { class: "workspace" }, h("div", { class: "panel" },
     h("section", { class: "card" }, h("h2", { class: "card-title" }, "Section file"), zone, problems),
     mapping, flankBox, assess.el), stage));
+  const handed = sessionStorage.getItem(REUSE_KEY);
+  if (handed) {
+    sessionStorage.removeItem(REUSE_KEY);
+    listMaterials().catch(() => []).then((m) => { state.materials = m; show(JSON.parse(handed)); });
+  }
   return () => {};
 }
 
