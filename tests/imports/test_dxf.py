@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import doctest
 import io
+import json
 import math
 import random
 
@@ -439,3 +440,22 @@ def test_hatch_with_an_arc_edge_over_its_bulged_outline_counts_once():
     out = import_dxf(one_layer_doc(draw), PART_MAP, None)
     assert len(out["section"]["regions"]) == 1
     assert any("drawn twice counted once" in w for w in out["warnings"])
+
+
+def test_undecodable_layer_names_come_back_as_json_safe_text():
+    doc = new_doc(4)
+    doc.modelspace().add_circle((0, 0), 10, dxfattribs={"layer": "WALLXX"})
+    data = to_bytes(doc).replace(b"WALLXX", b"WALL\xc4\xff")  # not UTF-8, in a UTF-8 file
+    out = import_dxf(data, None, None)
+    names = [layer["name"] for layer in out["layers"]]
+    assert len(names) == 1 and names[0].startswith("WALL")
+    json.dumps(out, ensure_ascii=False).encode("utf-8")  # no lone surrogates left
+
+
+def test_layer_names_with_slashes_are_escaped_in_pointers():
+    # '/' cannot occur in a DXF layer name, but a layer map key may carry anything
+    data = one_layer_doc(lambda msp: msp.add_circle((0, 0), 50, dxfattribs={"layer": "PART"}))
+    layer_map = {**PART_MAP, "A/B~C": {"material": "x", "conductivity": 0}}
+    with pytest.raises(InvalidSection) as err:
+        import_dxf(data, layer_map, None)
+    assert err.value.field == "/layer_map/A~1B~0C/conductivity"

@@ -166,6 +166,7 @@ def test_twenty_thousand_triangles_draw_quickly():
     best = min(_timed(render_png, field) for _ in range(3))
     # target 0.5 s on an idle 2-core machine; the bound leaves room for a loaded one
     assert best < 1.0, f"PNG of 20k triangles took {best:.2f} s"
+    assert len(render_svg(field, RESULT)) < 400_000  # bands embedded as an image, not paths
 
 
 def _timed(render, field) -> float:
