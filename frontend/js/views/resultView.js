@@ -62,7 +62,7 @@ function showFailed(root, doc) {
   replace(root, h("section", { class: "card" }, h("h2", { class: "card-title" }, "The evaluation failed"),
     h("p", { class: "muted mono" }, doc.id), list,
     h("p", {}, "Correct the input and evaluate again: ", h("a", { href: "#/upload" }, "upload a section"), " or ",
-      h("a", { href: "#/template" }, "use a template"), ".")));
+      h("a", { href: "#/template" }, "use a template"), "."), reuseButton(doc.request)));
 }
 
 async function showDone(root, result, signal) {
