@@ -8,7 +8,8 @@ import threading
 from concurrent.futures import Future
 from dataclasses import dataclass, field
 
-from coldseam.api.pool import Job, Outcome, QueueFull, WorkerPool, failure
+from coldseam.api.pool import QueueFull, WorkerPool
+from coldseam.api.slot import Job, Outcome, failure
 from coldseam.api.store import Record, Store, storage_key
 from coldseam.schema.evaluation import EvaluationRequest, request_digest
 
