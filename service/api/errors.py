@@ -26,10 +26,11 @@ STATUS_BY_KIND = {
     "LimitExceeded": 413,
     "SolveFailed": 500,
     "WorkerCrashed": 500,
+    "StoreFailed": 500,
     "Timeout": 504,
     "Interrupted": 503,
 }
-SERVER_FAULTS = {"SolveFailed", "WorkerCrashed"}
+SERVER_FAULTS = {"SolveFailed", "WorkerCrashed", "StoreFailed"}
 
 
 class BodyTooLarge(HTTPException):

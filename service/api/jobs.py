@@ -4,6 +4,7 @@ evaluations in flight, tied together (no FastAPI here)."""
 from __future__ import annotations
 
 import logging
+import sqlite3
 import threading
 from concurrent.futures import Future
 from dataclasses import dataclass, field
@@ -23,7 +24,14 @@ class Live:
     status: str = "queued"
     stage: str | None = None
     progress: float = 0.0
-    done: Future = field(default_factory=Future)
+    done: Future = field(default_factory=lambda: _uncancellable())
+
+
+def _uncancellable() -> Future:
+    """A future a client hanging up cannot cancel (asyncio.wrap_future would, on the way)."""
+    future: Future = Future()
+    future.set_running_or_notify_cancel()
+    return future
 
 
 @dataclass(frozen=True)
@@ -86,7 +94,10 @@ class Evaluations:
     def _started(self, job: Job) -> None:
         with self._lock:
             self._live[job.key].status = "running"
-        self.store.mark_running(job.key)
+        try:
+            self.store.mark_running(job.key)
+        except sqlite3.Error as exc:  # the live state still says running
+            log.error("could not record %s as running: %s", job.key[:12], exc)
 
     def _progressed(self, job: Job, stage: str, fraction: float) -> None:
         with self._lock:
@@ -96,16 +107,28 @@ class Evaluations:
     def _finished(self, job: Job, outcome: Outcome) -> None:
         if outcome.error is not None:
             outcome.error.setdefault("request_id", job.label)
-        try:
-            self.store.finish(job.key, outcome.result, outcome.field, outcome.error)
-        except (TypeError, ValueError) as exc:
-            log.error("result of %s could not be stored: %s", job.key[:12], exc)
-            outcome = failure("SolveFailed", f"the engine returned a result that is not "
-                              f"plain JSON ({exc}); this is an engine fault")
-            self.store.finish(job.key, None, None, outcome.error)
+        outcome = self._store_outcome(job, outcome)
         with self._lock:
             live = self._live.pop(job.key)
         if not outcome.ok:
             log.warning("evaluation failed (request %s): %s: %s", job.label,
                         outcome.error["kind"], outcome.error["message"])
         live.done.set_result(outcome)
+
+    def _store_outcome(self, job: Job, outcome: Outcome) -> Outcome:
+        """Store ``outcome``; what is answered when it cannot be stored."""
+        try:
+            self.store.finish(job.key, outcome.result, outcome.field, outcome.error)
+            return outcome
+        except (TypeError, ValueError) as exc:
+            log.error("result of %s is not plain JSON: %s", job.key[:12], exc)
+            outcome = failure("SolveFailed", f"the engine returned a result that is not "
+                              f"plain JSON ({exc}); this is an engine fault")
+        except sqlite3.Error as exc:
+            log.error("result of %s could not be stored: %s", job.key[:12], exc)
+            return failure("StoreFailed", f"the result could not be stored ({exc})")
+        try:
+            self.store.finish(job.key, None, None, outcome.error)
+        except sqlite3.Error as exc:
+            log.error("failure of %s could not be stored: %s", job.key[:12], exc)
+        return outcome

@@ -72,3 +72,21 @@ def _until(condition, timeout: float = 20.0) -> None:
             return
         time.sleep(0.05)
     raise AssertionError("condition not met in time")
+
+
+def test_a_client_hanging_up_does_not_cancel_the_evaluation(client):
+    import asyncio
+
+    from coldseam.schema.evaluation import parse_request
+
+    submitted = client.app.state.evaluations.submit("", parse_request(fake("sleep=0.5")), "{}")
+
+    async def hang_up() -> None:
+        with pytest.raises(asyncio.TimeoutError):
+            await asyncio.wait_for(asyncio.wrap_future(submitted.done), 0.05)
+
+    asyncio.run(hang_up())
+    assert submitted.done.result(timeout=20).ok
+    stored = client.get(f"/api/v1/evaluations/{submitted.id}").json()
+    assert stored["status"] == "done"
+    assert client.post("/api/v1/evaluations", json=fake()).status_code == 200
