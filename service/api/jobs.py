@@ -16,6 +16,9 @@ from coldseam.schema.evaluation import EvaluationRequest, request_digest
 
 log = logging.getLogger(__name__)
 
+#: Failures caused by the request itself (logged quietly).
+USER_ERRORS = {"InvalidSection", "MeshingFailed", "LimitExceeded"}
+
 
 @dataclass
 class Live:
@@ -111,8 +114,10 @@ class Evaluations:
         with self._lock:
             live = self._live.pop(job.key)
         if not outcome.ok:
-            log.warning("evaluation failed (request %s): %s: %s", job.label,
-                        outcome.error["kind"], outcome.error["message"])
+            kind = outcome.error["kind"]
+            level = logging.INFO if kind in USER_ERRORS else logging.WARNING
+            log.log(level, "evaluation failed (request %s): %s: %s", job.label, kind,
+                    outcome.error["message"])
         live.done.set_result(outcome)
 
     def _store_outcome(self, job: Job, outcome: Outcome) -> Outcome:
