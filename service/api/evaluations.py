@@ -21,7 +21,6 @@ from coldseam.api.models import (
     ErrorOut,
     EvaluationAccepted,
     EvaluationPage,
-    EvaluationStatusOut,
     EvaluationSummary,
 )
 from coldseam.api.store import Record
@@ -48,6 +47,15 @@ REQUEST_BODY = {
 }
 RESULT = {"description": "The result (model-v1) with its id, status and the request as sent.",
           "content": {"application/json": {"example": examples.WALL_1D_RESULT}}}
+RESULT_OR_STATE = {
+    "description": "The result when done (as POST answers it); before that, or when it failed, "
+    "an EvaluationStatusOut.",
+    "content": {"application/json": {
+        "schema": {"anyOf": [{"type": "object"},
+                             {"$ref": "#/components/schemas/EvaluationStatusOut"}]},
+        "examples": {"done": {"value": examples.WALL_1D_RESULT},
+                     "running": {"value": examples.RUNNING}}}},
+}
 
 
 @router.post("", openapi_extra={"requestBody": REQUEST_BODY}, status_code=200,
@@ -92,8 +100,7 @@ def list_evaluations(evaluations: EvaluationsDep, owner: OwnerDep,
     return EvaluationPage(items=items, total=total, limit=limit, offset=offset)
 
 
-@router.get("/{evaluation_id}", responses={200: RESULT, 404: {"model": ErrorOut},
-                                           202: {"model": EvaluationStatusOut}})
+@router.get("/{evaluation_id}", responses={200: RESULT_OR_STATE, 404: {"model": ErrorOut}})
 async def get_evaluation(evaluation_id: str, request: Request, evaluations: EvaluationsDep,
                          owner: OwnerDep) -> Response:
     """The result when done; otherwise ``status`` (queued, running, failed), ``stage`` and

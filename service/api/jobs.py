@@ -68,8 +68,8 @@ class Evaluations:
             record = self.store.get(key)
             if record is not None and record.status == "done":
                 return Submitted(evaluation_id, key, None)
+            self.store.queue(key, evaluation_id, owner, request.section.name, request_text)
             live = self._live[key] = Live()
-        self.store.queue(key, evaluation_id, owner, request.section.name, request_text)
         job = Job(key=key, request=request.model_dump(mode="json"), label=request_id,
                   on_start=self._started, on_progress=self._progressed,
                   on_finish=self._finished)
@@ -87,7 +87,8 @@ class Evaluations:
 
     def record(self, owner: str, evaluation_id: str) -> tuple[str, Record | None, Live | None]:
         key = storage_key(owner, evaluation_id)
-        return key, self.store.get(key), self.live(key)
+        live = self.live(key)  # first: the store is written before the live state goes
+        return key, self.store.get(key), live
 
     def _forget(self, key: str) -> None:
         with self._lock:

@@ -1,5 +1,5 @@
-"""The OpenAPI document: the app's own, plus the model-v1 request schemas that routes
-reading their body themselves refer to (``#/components/schemas/EvaluationRequest``)."""
+"""The OpenAPI document: the app's own, plus the schemas that routes reading their body
+themselves, or answering several shapes, refer to (``#/components/schemas/EvaluationRequest``)."""
 
 from __future__ import annotations
 
@@ -8,16 +8,20 @@ from typing import Any
 from fastapi import FastAPI
 from fastapi.openapi.utils import get_openapi
 
+from coldseam.api.models import EvaluationStatusOut
 from coldseam.schema.evaluation import EvaluationRequest
 
 REF_TEMPLATE = "#/components/schemas/{model}"
 
 
 def model_schemas() -> dict[str, Any]:
-    """JSON schemas of the request models, keyed by name, refs pointing into components."""
-    schema = EvaluationRequest.model_json_schema(ref_template=REF_TEMPLATE)
-    definitions = schema.pop("$defs", {})
-    return {**definitions, "EvaluationRequest": schema}
+    """JSON schemas of the models routes refer to by name, refs pointing into components."""
+    schemas: dict[str, Any] = {}
+    for model in (EvaluationRequest, EvaluationStatusOut):
+        schema = model.model_json_schema(ref_template=REF_TEMPLATE)
+        schemas.update(schema.pop("$defs", {}))
+        schemas[model.__name__] = schema
+    return schemas
 
 
 def install(app: FastAPI) -> None:
