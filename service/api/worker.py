@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import importlib
 import logging
+import signal
 import time
 from collections.abc import Callable
 from multiprocessing.connection import Connection
@@ -39,6 +40,7 @@ def load_engine(spec: str) -> Engine:
 
 def worker_main(conn: Connection, engine_spec: str) -> None:
     """Entry point of a worker process: evaluate requests until told to stop."""
+    signal.signal(signal.SIGINT, signal.SIG_IGN)  # Ctrl-C is for the server, which stops us
     engine = load_engine(engine_spec)
     conn.send(("ready",))
     while True:
