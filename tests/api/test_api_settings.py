@@ -46,3 +46,12 @@ def test_unfinished_evaluations_are_failed_after_a_restart(client_for, make_sett
     assert body["error"]["kind"] == "Interrupted"
     assert "server stopped" in body["error"]["message"]
     assert body["request"] == {"section": {"name": "left running"}}
+
+
+def test_results_database_is_in_wal_mode(client_for, make_settings):
+    import sqlite3
+
+    with client_for() as client:
+        assert client.get("/healthz").status_code == 200
+        with sqlite3.connect(make_settings().database_path) as db:
+            assert db.execute("PRAGMA journal_mode").fetchone()[0] == "wal"
