@@ -6,7 +6,7 @@ import hashlib
 import sqlite3
 
 import pytest
-from conftest import fake
+from api_support import fake
 
 from coldseam.api.auth import read_digest_file
 from coldseam.api.store import storage_key

@@ -8,7 +8,7 @@ import subprocess
 import sys
 
 import pytest
-from conftest import REPO
+from api_support import REPO
 
 from coldseam.schema.evaluation import parse_request, request_digest
 

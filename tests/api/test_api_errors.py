@@ -5,7 +5,7 @@ from __future__ import annotations
 import time
 
 import pytest
-from conftest import fake, wall
+from api_support import fake, wall
 
 from coldseam.api.store import Store
 

@@ -5,7 +5,7 @@ from __future__ import annotations
 import time
 
 import pytest
-from conftest import REAL_WITH_HOOK, WALL_1D, fake, wall
+from api_support import REAL_WITH_HOOK, WALL_1D, fake, wall
 
 from coldseam.schema.evaluation import parse_request, request_digest
 

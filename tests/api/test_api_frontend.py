@@ -57,6 +57,6 @@ def test_without_a_frontend_the_root_points_to_the_docs(client):
 
 
 def test_default_frontend_is_the_folder_beside_the_package():
-    from conftest import REPO
+    from api_support import REPO
 
     assert Settings().frontend_dir == REPO / "frontend"

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from conftest import WALL_1D
+from api_support import WALL_1D
 
 from coldseam.api.examples import WALL_1D as DOCUMENTED
 from coldseam.schema.evaluation import parse_request

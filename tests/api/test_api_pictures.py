@@ -6,7 +6,7 @@ import sys
 import types
 
 import pytest
-from conftest import WALL_1D, fake
+from api_support import WALL_1D, fake
 
 ENGINE = "coldseam.thermal.evaluate:evaluate"
 

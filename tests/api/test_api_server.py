@@ -13,7 +13,7 @@ from contextlib import contextmanager
 
 import httpx
 import pytest
-from conftest import WALL_1D
+from api_support import WALL_1D
 
 # ISO 6946: U = 1 / (Rsi + Σ d/λ + Rse) of the example wall.
 WALL_U = 1 / (0.13 + 0.100 / 0.035 + 0.200 / 1.0 + 0.04)

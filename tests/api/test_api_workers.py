@@ -7,7 +7,7 @@ import signal
 import time
 
 import pytest
-from conftest import REAL_WITH_HOOK, WALL_1D, fake, wall
+from api_support import REAL_WITH_HOOK, WALL_1D, fake, wall
 
 # ISO 6946: U = 1 / (Rsi + Σ d/λ + Rse) of the example wall (see examples/wall-1d.json).
 WALL_U = 1 / (0.13 + 0.100 / 0.035 + 0.200 / 1.0 + 0.04)
