@@ -84,14 +84,16 @@ class ConductionProblem:
 
     def load(self, ambient: np.ndarray) -> np.ndarray:
         """Right-hand side ∫_R h θ∞ φ ds for boundary temperatures ``ambient`` (B,) in °C."""
-        weight = self.h * ambient * self.lengths
-        rhs = np.zeros(self.space.dofs)
-        np.add.at(rhs, self.space.edge_dofs, weight[:, None] * self._family.EDGE_LOAD[None])
+        weight = (self.h * self.lengths).reshape((-1,) + (1,) * (ambient.ndim - 1)) * ambient
+        rhs = np.zeros((self.space.dofs,) + ambient.shape[1:])
+        load = self._family.EDGE_LOAD.reshape((1, -1) + (1,) * (ambient.ndim - 1))
+        np.add.at(rhs, self.space.edge_dofs, weight[:, None] * load)
         return rhs
 
     def solve(self, ambient: np.ndarray) -> np.ndarray:
-        """Temperatures at every dof (°C) for boundary temperatures ``ambient`` (B,)."""
-        theta = np.zeros(self.space.dofs)
+        """Temperatures at every dof (°C) for boundary temperatures ``ambient`` (B,), or
+        (D, k) for k sets of boundary temperatures given as (B, k)."""
+        theta = np.zeros((self.space.dofs,) + ambient.shape[1:])
         theta[self.fixed] = ambient[self.fixed_owner[self.fixed]]
         rhs = self.load(ambient) - self.matrix @ theta
         theta[self.free] = self.solver.solve(rhs[self.free])
@@ -116,33 +118,33 @@ class ConductionProblem:
             flows += np.bincount(owner_group, weights=residual[self.fixed], minlength=groups)
         return flows
 
-    def flow_functional(self, group_index: int) -> tuple[np.ndarray, np.ndarray]:
-        """Linear functional of the heat flow through one group: Φ = c·θ + d·θ∞ terms.
+    def flow_functional(self, groups: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """Linear functional of the heat flow through some groups: Φ = c·θ + d·θ∞ terms.
 
         Returns (c, explicit) where c (D,) is ∂Φ/∂θ and ``explicit`` marks the fixed dofs whose
         reaction enters Φ (their element matrices depend on λ explicitly).
         """
         group = self.space.mesh.boundary_group
         c = np.zeros(self.space.dofs)
-        in_group = (group == group_index) & self.robin
+        in_group = np.isin(group, groups) & self.robin
         weight = -(self.h * self.lengths)[in_group]
         np.add.at(c, self.space.edge_dofs[in_group], weight[:, None] * self._family.EDGE_LOAD[None])
         explicit = np.zeros(self.space.dofs)
-        owned = self.fixed[group[self.fixed_owner[self.fixed]] == group_index]
+        owned = self.fixed[np.isin(group[self.fixed_owner[self.fixed]], groups)]
         explicit[owned] = 1.0
         c += self.matrix.T @ explicit
         return c, explicit
 
 
 def log_conductivity_sensitivity(problem: ConductionProblem, theta: np.ndarray,
-                                 group_index: int, materials: int) -> np.ndarray:
-    """∂Φ/∂ln λₘ for the heat flow Φ through one group, per material index m, in W/m.
+                                 groups: np.ndarray, materials: int) -> np.ndarray:
+    """∂Φ/∂ln λₘ for the heat flow Φ through some groups, per material index m, in W/m.
 
     One adjoint solve: A_ff z = c_f with c = ∂Φ/∂θ; then ∂Φ/∂ln λₘ = Σ_{e∈m} wₑᵀ Kₑ θₑ with
     w = e − z (e marks fixed dofs whose reaction is part of Φ), because ∂A/∂ln λₘ = Kₘ.
     Both conductivity components of a material scale together.
     """
-    c, explicit = problem.flow_functional(group_index)
+    c, explicit = problem.flow_functional(np.atleast_1d(groups))
     w = explicit.copy()
     w[problem.free] -= problem.solver.solve(c[problem.free])
     family = FAMILIES[problem.space.order]

@@ -24,6 +24,8 @@ GROWTH = 0.5
 #: Elements along a thin layer are at most this many times its thickness.
 THIN_ASPECT = 12.0
 SAMPLES = 24
+#: Junction-vertex sizes shrink as factor^VERTEX_POWER from level to level.
+VERTEX_POWER = 1.0
 
 
 @dataclass
@@ -39,14 +41,14 @@ class SegmentPlan:
         return self._graded(np.atleast_2d(xy))
 
     def _graded(self, xy: np.ndarray) -> np.ndarray:
-        return _graded(xy, self._tree, self._vertex_size, self.h_max * self._factor) / self._factor
+        return _graded(xy, self._tree, self._vertex_size, self.h_max, self._growth)
 
 
-def _graded(xy, tree, vertex_size, h_max) -> np.ndarray:
+def _graded(xy, tree, vertex_size, h_max, growth) -> np.ndarray:
     k = min(8, len(vertex_size))
     dist, idx = tree.query(xy, k=k)
     dist, idx = dist.reshape(len(xy), k), idx.reshape(len(xy), k)
-    return np.minimum(h_max, np.min(vertex_size[idx] + GROWTH * dist, axis=1))
+    return np.minimum(h_max, np.min(vertex_size[idx] + growth * dist, axis=1))
 
 
 def junction_vertices(classified: Classified) -> np.ndarray:
@@ -105,7 +107,9 @@ def local_feature_size(points, seg_array, xy, own: np.ndarray) -> np.ndarray:
 
 def plan(classified: Classified, factor: float = 1.0) -> SegmentPlan:
     """Discretise every segment for a level whose sizes are the level-0 sizes / factor
-    (the whole size function scales, growth included, so nodes grow as factor²)."""
+    (the whole size function scales, growth included, so nodes grow as factor²), except at
+    junction vertices, where sizes shrink as factor^VERTEX_POWER: singular corners need ever
+    stronger grading, at a cost that grows only with the logarithm of the size ratio."""
     part = classified.partition
     extent = part.extent
     h_max, h_junction = H_MAX * extent, H_JUNCTION * extent
@@ -115,23 +119,24 @@ def plan(classified: Classified, factor: float = 1.0) -> SegmentPlan:
     vertex_xy = part.points[junctions]
     lfs_vertex = local_feature_size(part.points, seg_array, vertex_xy,
                                     np.column_stack([junctions, junctions]))
-    vertex_size = np.minimum(h_junction, 0.5 * lfs_vertex)
+    vertex_size = np.minimum(h_junction, 0.5 * lfs_vertex) / factor ** VERTEX_POWER
     tree = cKDTree(vertex_xy)
-    inner = _discretise(part.points, seg_array, tree, vertex_size, h_max, factor)
+    growth = GROWTH / factor
+    inner = _discretise(part.points, seg_array, tree, vertex_size, h_max / factor, growth, factor)
     result = SegmentPlan(inner, np.empty(0), h_max / factor, junctions)
-    result._tree, result._vertex_size, result._factor = tree, vertex_size, factor
+    result._tree, result._vertex_size, result._growth = tree, vertex_size, growth
     result.point_size = result.size_at(part.points)
     return result
 
 
-def _discretise(points, seg_array, tree, vertex_size, h_max, factor) -> dict:
+def _discretise(points, seg_array, tree, vertex_size, h_max, growth, factor) -> dict:
     t = np.linspace(0.0, 1.0, SAMPLES)
     a, b = points[seg_array[:, 0]], points[seg_array[:, 1]]
     xy = (a[:, None, :] + t[None, :, None] * (b - a)[:, None, :]).reshape(-1, 2)
     own = np.repeat(seg_array, SAMPLES, axis=0)
-    h = _graded(xy, tree, vertex_size, h_max)
+    h = _graded(xy, tree, vertex_size, h_max, growth)
     lfs = local_feature_size(points, seg_array, xy, own)
-    h = np.minimum(h, THIN_ASPECT * lfs).reshape(len(seg_array), SAMPLES) / factor
+    h = np.minimum(h, THIN_ASPECT * lfs / factor).reshape(len(seg_array), SAMPLES)
     length = np.linalg.norm(b - a, axis=1)
     inner = {}
     for k, seg in enumerate(map(tuple, seg_array)):
