@@ -39,10 +39,20 @@ def psi_pair(model: ThermalModel) -> tuple[int, int] | None:
     return None
 
 
+def primary_interior(model: ThermalModel) -> int | None:
+    """The interior environment the fRsi check is about: the warmest one."""
+    interior = np.flatnonzero(model.env_interior)
+    if len(interior) == 0:
+        return None
+    return int(interior[np.argmax(model.env_temperature[interior])])
+
+
 def interior_minimum(model: ThermalModel, run: Run) -> tuple[float, int] | None:
-    """Lowest temperature on any interior surface (actual temperatures) and its dof."""
+    """Lowest temperature on the surfaces of the primary (warmest) interior environment
+    (actual temperatures) and its dof."""
     space = run.problem.space
-    interior_edge = model.env_interior[model.boundary_env[space.mesh.boundary_group]]
+    primary = primary_interior(model)
+    interior_edge = model.boundary_env[space.mesh.boundary_group] == primary
     dofs = np.unique(space.edge_dofs[interior_edge])
     if len(dofs) == 0:
         return None
@@ -137,21 +147,40 @@ def condensation_block(model: ThermalModel, solution: LevelSolution) -> dict | N
         return None
     theta_min, k = minimum
     weights = run.unit[k]
-    interior = np.flatnonzero(model.env_interior)
     exterior = np.flatnonzero(~model.env_interior)
-    theta_i = float(temperatures[interior].max())
+    primary = primary_interior(model)
+    theta_i = float(temperatures[primary])
     theta_e = float(temperatures[exterior].min())
     if not theta_i > theta_e:
         return None  # no heating case to judge; skipped with a warning (energy_warnings)
     if len(temperatures) == 2:
-        frsi = float(weights[interior[0]])
+        frsi = float(weights[primary])
     else:
-        frsi = (theta_min - theta_e) / (theta_i - theta_e) if theta_i > theta_e else float("nan")
+        frsi = (theta_min - theta_e) / (theta_i - theta_e)
     block = humidity.assess_condensation(frsi, model.request.condensation, theta_i, theta_e)
     block["at"] = run.problem.space.dof_points[k].tolist()
     block["min_temperature_section"] = theta_min
     block["temperature_weighting"] = dict(zip(model.env_ids, weights.tolist(), strict=True))
+    block["environment"] = model.env_ids[primary]
+    if len(temperatures) > 2:
+        block["environments"] = interior_weightings(model, run)
     return block
+
+
+def interior_weightings(model: ThermalModel, run: Run) -> dict:
+    """Per interior environment: the lowest surface temperature and its ISO 10211 temperature
+    weighting factors g (θsi = Σ gj θj, Σ g = 1)."""
+    space = run.problem.space
+    env_of_edge = model.boundary_env[space.mesh.boundary_group]
+    theta = run.theta
+    out = {}
+    for env in np.flatnonzero(model.env_interior):
+        dofs = np.unique(space.edge_dofs[env_of_edge == env])
+        k = int(dofs[np.argmin(theta[dofs])])
+        out[model.env_ids[env]] = {
+            "min_temperature": float(theta[k]), "at": space.dof_points[k].tolist(),
+            "temperature_weighting": dict(zip(model.env_ids, run.unit[k].tolist(), strict=True))}
+    return out
 
 
 def sensitivities(model, solution: LevelSolution, flanking, pair) -> list[dict]:
@@ -169,10 +198,11 @@ def sensitivities(model, solution: LevelSolution, flanking, pair) -> list[dict]:
 
 def energy_warnings(model, solution: LevelSolution) -> list[str]:
     out = []
-    flows = solution.design.heat_flows
-    scale = 0.5 * np.abs(flows).sum()
-    if scale > 0 and abs(flows.sum()) / scale > BALANCE:
-        out.append(f"energy balance off by {abs(flows.sum()) / scale:.1e} of the heat flow "
+    unit_flows = solution.design.unit_flows  # columns: one environment at 1 K, others at 0
+    scale = 0.5 * np.abs(unit_flows).sum(axis=0)
+    imbalance = float(np.max(np.abs(unit_flows.sum(axis=0)) / np.maximum(scale, 1e-300)))
+    if imbalance > BALANCE:
+        out.append(f"energy balance off by {imbalance:.1e} of the heat flow "
                    "(ISO 10211 asks for under 1e-4)")
     if model.has_condensation_run():
         temperatures = model.env_temperature

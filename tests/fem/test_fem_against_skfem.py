@@ -4,7 +4,7 @@ library (test-only dependency), on the same mesh: temperatures agree to 1e-9 K."
 import numpy as np
 import pytest
 import skfem
-from skfem.helpers import dot, grad
+from skfem.helpers import grad
 
 from coldseam.fem.system import make_space
 from coldseam.schema import parse_request

@@ -184,11 +184,11 @@ def test_rotation_by_90_degrees_with_swapped_orthotropic_conductivity():
 
 
 def test_p2_error_is_below_p1_error_on_the_same_meshes():
+    from coldseam.fem.system import make_space
+    from coldseam.schema import parse_request
     from coldseam.thermal.levels import mesh_levels
     from coldseam.thermal.model import prepare
     from coldseam.thermal.solve import run as solve_run
-    from coldseam.fem.system import make_space
-    from coldseam.schema import parse_request
 
     model = prepare(parse_request(case_1_section()))
     mesh, probes = next(mesh_levels(model.classified))
