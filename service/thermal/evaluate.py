@@ -79,7 +79,7 @@ def _certify(model: ThermalModel, flanking: list[FlankingU], pair, report: Progr
         if levels:
             compare(levels[-1], figures)
         levels.append(figures)
-        report(f"solving: level {k + 1}, {mesh.nodes} nodes", 0.1 + 0.8 * (1 - 0.6 ** (k + 1)))
+        report("solving", 0.1 + 0.8 * (1 - 0.6 ** (k + 1)))
         if met(levels, options.accuracy):
             break
         if k + 1 >= options.max_levels:
