@@ -182,8 +182,9 @@ def flanking(ident: str, length_mm: float, start: tuple, end: tuple) -> dict[str
 
 def request(name: str, description: str, materials: dict[str, MaterialChoice],
             regions: list, boundaries: list, flanking_elements: list,
-            dimensions: str | None) -> dict[str, Any]:
-    """The evaluation request of model-v1 for a template-built section."""
+            dimensions: str | None, symmetry_lines: list | None = None) -> dict[str, Any]:
+    """The evaluation request of model-v1 for a template-built section; ``symmetry_lines``
+    marks adiabatic outline pieces that are symmetry planes, not cut-off planes."""
     psi: dict[str, Any] = {"flanking": flanking_elements}
     if dimensions is not None:
         psi["dimensions"] = dimensions
@@ -197,6 +198,7 @@ def request(name: str, description: str, materials: dict[str, MaterialChoice],
                 {"id": "outside", "temperature": OUTSIDE_TEMPERATURE, "side": "exterior"},
             ],
             "boundaries": boundaries,
+            "symmetry_lines": [[_point(p) for p in line] for line in symmetry_lines or []],
         },
         "psi": psi,
         "condensation": {"interior_surface_resistance": RSI_CONDENSATION,

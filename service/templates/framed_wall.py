@@ -69,7 +69,8 @@ def build(p: dict[str, Any]) -> dict[str, Any]:
     materials["stud"] = p["stud_material"]
     return request(f"Framed wall, studs {w:g} × {p['stud_depth']:g} mm at {s:g} mm",
                    f"Template framed_wall. Effective U = L2D / {s / 1000:g} m.", materials,
-                   regions, boundaries, [flanking("bay", s, (0, y_bay), (x, y_bay))], None)
+                   regions, boundaries, [flanking("bay", s, (0, y_bay), (x, y_bay))], None,
+                   symmetry_lines=[[(0, 0), (x, 0)], [(0, s), (x, s)]])  # mid-bay planes
 
 
 def effective_u_value(l2d: float, stud_spacing: float) -> float:

@@ -87,7 +87,8 @@ def build(p: dict[str, Any]) -> dict[str, Any]:
     return request(f"Ground floor, {p['floor_insulation_thickness']:g} mm under slab, "
                    f"{p['perimeter_insulation_thickness']:g} mm perimeter", "Template "
                    f"ground_floor; floor U {u_floor:.4f} W/(m²·K) from ISO 13370.",
-                   materials, regions, boundaries, flank, p["dimensions"])
+                   materials, regions, boundaries, flank, p["dimensions"],
+                   symmetry_lines=[[(inner_end, hf), (inner_end, -1e6)]])  # mid-floor plane
 
 
 def _floor_bottom(p: dict[str, Any]) -> float:

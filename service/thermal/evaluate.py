@@ -107,7 +107,7 @@ def _result(model, flanking, pair, levels, solution: LevelSolution, warnings) ->
         "target": {"relative_change": flow_target, "temperature_change": temperature_target},
         "target_met": met(levels, options.accuracy),
         "estimated_remaining_change": tail_estimate(
-            [level.relative_change for level in levels[1:]]),
+            [level.coupling_sum for level in levels], relative=True),
         "compared_with_nodes": levels[-2].nodes if len(levels) > 1 else None,
         "levels": [level.as_dict() for level in levels],
     }

@@ -61,37 +61,44 @@ def compare(previous: LevelFigures, current: LevelFigures) -> None:
         current.temperature_change = abs(current.min_temperature - previous.min_temperature)
 
 
-def tail_estimate(changes: list[float | None]) -> float | None:
-    """Estimated distance of the last level from the limit, from the last two changes.
+def tail_estimate(values: list[float | None], relative: bool) -> float | None:
+    """Estimated remaining change of the last level's value, Δₖ·r/(1 − r).
 
-    With a geometric ratio r = Δₖ/Δₖ₋₁ the remaining change is Δₖ·r/(1 − r). None when there
-    are fewer than two changes or they do not shrink (r ≥ 0.9): no estimate can be trusted.
+    Δₖ is the change from the level before (about half the nodes). The ratio r per doubling
+    comes from the same mesh family where possible (levels k and k−2 are nested refinements,
+    k−2 and k−4 likewise): r = √(|vₖ − vₖ₋₂| / |vₖ₋₂ − vₖ₋₄|); otherwise from consecutive
+    changes. r is bounded to [0.25, 0.9]: a lucky small ratio is not trusted and a slow one
+    counts as 0.9 (a remaining change of 9·Δₖ). None when the changes clearly grow (r > 1.2)
+    or there are too few levels to judge.
     """
-    if len(changes) < 2 or changes[-1] is None or changes[-2] is None:
+    v = [x for x in values if x is not None]
+    if len(v) < 3:
         return None
-    if changes[-2] == 0:
-        return 0.0 if changes[-1] == 0 else None
-    ratio = changes[-1] / changes[-2]
-    if ratio >= 0.9:
+    scale = max(abs(v[-1]), 1e-300) if relative else 1.0
+    last = abs(v[-1] - v[-2]) / scale
+    if len(v) >= 5:
+        near, far = abs(v[-1] - v[-3]), abs(v[-3] - v[-5])
+        ratio = (near / far) ** 0.5 if far > 0 else (0.0 if near == 0 else 2.0)
+    else:
+        before = abs(v[-2] - v[-3])
+        ratio = abs(v[-1] - v[-2]) / before if before > 0 else (0.0 if last == 0 else 2.0)
+    if ratio > 1.2:
         return None
-    ratio = max(ratio, 0.25)  # levels are not nested: do not trust a lucky small ratio
-    return changes[-1] * ratio / (1 - ratio)
+    ratio = min(max(ratio, 0.25), 0.9)
+    return last * ratio / (1 - ratio)
 
 
 def met(levels: list[LevelFigures], accuracy: str) -> bool:
-    """Target met: the last change and the estimated remaining change are both below it,
+    """Target met: the last change and the estimated remaining change together are below it,
     for the heat flow (relative) and the minimum interior surface temperature (K)."""
     flow_target, temperature_target = TARGETS[accuracy]
-    flow = [level.relative_change for level in levels[1:]]
-    temperature = [level.temperature_change for level in levels[1:]]
-    if not flow or flow[-1] is None or flow[-1] >= flow_target:
+    last = levels[-1]
+    if last.relative_change is None:
         return False
-    tail = tail_estimate(flow)
-    if tail is None or flow[-1] + tail >= flow_target:
+    tail = tail_estimate([level.coupling_sum for level in levels], relative=True)
+    if tail is None or last.relative_change + tail >= flow_target:
         return False
-    if levels[-1].min_temperature is None:
+    if last.min_temperature is None:
         return True
-    if temperature[-1] is None or temperature[-1] >= temperature_target:
-        return False
-    tail = tail_estimate(temperature)
-    return tail is not None and temperature[-1] + tail < temperature_target
+    tail = tail_estimate([level.min_temperature for level in levels], relative=False)
+    return tail is not None and last.temperature_change + tail < temperature_target
