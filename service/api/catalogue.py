@@ -39,6 +39,8 @@ QUANTITIES = {
     "fRsi": ("condensation", "fRsi"),
     "fRsi_critical": ("condensation", "fRsi_critical"),
     "theta_si_min": ("condensation", "min_temperature"),
+    "min_temperature": ("condensation", "min_temperature"),
+    "U": ("U",),
 }
 RESERVED = {"quantity", "format"}
 PARAMETERS_BODY = {
@@ -97,19 +99,24 @@ async def template_value(template_id: str, request: Request, evaluations: Evalua
                          ) -> PlainTextResponse:
     """One figure of a template evaluation as plain text; other query parameters are the
     template's (e.g. ``?quantity=psi&insulation_thickness=160``)."""
-    if quantity not in QUANTITIES:
-        raise InvalidSection(f"quantity must be one of {', '.join(QUANTITIES)}", "/quantity")
+    wanted = [q.strip() for q in quantity.split(",") if q.strip()]
+    unknown = [q for q in wanted if q not in QUANTITIES]
+    if not wanted or unknown:
+        raise InvalidSection(f"quantity must be one of {', '.join(QUANTITIES)} (several, "
+                             "comma-separated, with format=csv)", "/quantity")
+    if len(wanted) > 1 and format != "csv":
+        raise InvalidSection("several quantities need format=csv", "/quantity")
     given = {k: v for k, v in request.query_params.items() if k not in RESERVED}
     parameters = {k: query_value(v) for k, v in given.items()}
     built = await run_in_threadpool(build, template_id, parameters)
     parsed = await run_in_threadpool(checked_request, built, settings)
     result = await evaluated(evaluations, owner, parsed, json.dumps(built), request)
-    value = pick(result, quantity)
+    values = [pick(result, q) for q in wanted]
     if format == "csv":
-        header = ",".join([*given, quantity])
-        line = ",".join([*given.values(), number(value)])
+        header = ",".join([*given, *wanted])
+        line = ",".join([*given.values(), *map(number, values)])
         return PlainTextResponse(f"{header}\n{line}\n", media_type="text/csv")
-    return PlainTextResponse(number(value) + "\n")
+    return PlainTextResponse(number(values[0]) + "\n")
 
 
 def templates() -> Any:
@@ -167,6 +174,8 @@ async def evaluated(evaluations: Evaluations, owner: str, parsed: EvaluationRequ
 
 
 def pick(result: dict[str, Any], quantity: str) -> float:
+    if quantity == "U":
+        return effective_u(result)
     value: Any = result
     for part in QUANTITIES[quantity]:
         value = value.get(part) if isinstance(value, dict) else None
@@ -174,6 +183,17 @@ def pick(result: dict[str, Any], quantity: str) -> float:
         raise InvalidSection(f"this evaluation has no {quantity} (is the block for it "
                              "missing from the template's request?)", "/quantity")
     return float(value)
+
+
+def effective_u(result: dict[str, Any]) -> float:
+    """U of the whole modelled section: L2D over the length of its interior surfaces, in
+    W/(m²·K); for a periodic framed wall this is the wall's effective U."""
+    interior = [s.get("length", 0.0) for s in result.get("surfaces", {}).values()
+                if s.get("side") == "interior"]
+    if result.get("L2D") is None or not sum(interior):
+        raise InvalidSection("this evaluation has no U: it needs two environments and an "
+                             "interior surface", "/quantity")
+    return float(result["L2D"]) / sum(interior)
 
 
 def number(value: float) -> str:

@@ -131,9 +131,10 @@ def surface_block(model, solution: LevelSolution) -> dict:
     for k, env in enumerate(model.section.environments):
         dofs = np.unique(space.edge_dofs[env_of_edge == k])
         low, high = int(dofs[np.argmin(theta[dofs])]), int(dofs[np.argmax(theta[dofs])])
+        length = float(run.problem.lengths[env_of_edge == k].sum())
         out[env.id] = {"side": env.side, "min_temperature": float(theta[low]),
                        "at": space.dof_points[low].tolist(),
-                       "max_temperature": float(theta[high])}
+                       "max_temperature": float(theta[high]), "length": length}
     return out
 
 

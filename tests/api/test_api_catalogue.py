@@ -106,3 +106,23 @@ def test_value_needs_the_key_in_plain_text_too(client_for):
         response = client.get("/api/v1/templates/wall_corner/value")
         assert response.status_code == 401
         assert response.text.startswith("error: this server needs an API key")
+
+
+def test_value_gives_several_quantities_as_csv_and_the_effective_u(client_for):
+    with client_for(engine=ENGINE) as client:
+        params = {"quantity": "psi,fRsi,min_temperature,U", "format": "csv",
+                  "stud_spacing": "600"}
+        csv = client.get("/api/v1/templates/framed_wall/value", params=params)
+        assert csv.status_code == 200, csv.text
+        header, line = csv.text.splitlines()
+        assert header == "stud_spacing,psi,fRsi,min_temperature,U"
+        values = [float(v) for v in line.split(",")]
+        result = client.post("/api/v1/templates/framed_wall/evaluations",
+                             json={"parameters": {"stud_spacing": 600}}).json()
+        # the effective U of a periodic framed wall is L2D over one stud spacing
+        assert values[4] == pytest.approx(result["L2D"] / 0.6, rel=1e-5)
+        assert values[3] == pytest.approx(result["condensation"]["min_temperature"], rel=1e-5)
+        several = client.get("/api/v1/templates/framed_wall/value",
+                             params={"quantity": "psi,U"})
+        assert several.status_code == 422
+        assert several.text.startswith("error: /quantity: several quantities need format=csv")
