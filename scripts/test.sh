@@ -14,7 +14,7 @@ if ! command -v chromium >/dev/null 2>&1; then
   fi
 fi
 
-python3 -m ruff check service tests bench
+python3 -m ruff check service tests $( [ -d bench ] && echo bench )
 if command -v node >/dev/null 2>&1; then
   node --test frontend/tests/
 fi

@@ -12,11 +12,24 @@ from fastapi.staticfiles import StaticFiles
 log = logging.getLogger(__name__)
 
 
+#: Parts of the frontend folder that are for developers, not for the browser.
+PRIVATE = ("tests", "node_modules", "package.json", "package-lock.json")
+
+
+class PageFiles(StaticFiles):
+    """StaticFiles that keeps the frontend's test files and package manifest private."""
+
+    def get_path(self, scope) -> str:
+        path = super().get_path(scope)
+        first = Path(path).parts[0] if Path(path).parts else ""
+        return "\0missing" if first in PRIVATE else path
+
+
 def mount(app: FastAPI, directory: Path | None) -> None:
     """Serve ``directory`` at ``/`` (after every other route), or a pointer to the docs."""
     if directory is not None and directory.is_dir():
         # StaticFiles resolves every path and refuses any outside the directory.
-        app.mount("/", StaticFiles(directory=directory.resolve(), html=True), name="frontend")
+        app.mount("/", PageFiles(directory=directory.resolve(), html=True), name="frontend")
         return
     if directory is not None:
         log.warning("frontend folder %s does not exist; serving the API only", directory)

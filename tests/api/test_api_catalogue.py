@@ -126,3 +126,9 @@ def test_value_gives_several_quantities_as_csv_and_the_effective_u(client_for):
                              params={"quantity": "psi,U"})
         assert several.status_code == 422
         assert several.text.startswith("error: /quantity: several quantities need format=csv")
+
+
+@pytest.mark.parametrize("path", ["/tests/colormap.test.js", "/package.json"])
+def test_frontend_developer_files_are_not_served(client, path):
+    assert client.get(path).status_code == 404
+    assert client.get("/js/main.js").status_code == 200
