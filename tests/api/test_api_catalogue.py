@@ -129,6 +129,10 @@ def test_value_gives_several_quantities_as_csv_and_the_effective_u(client_for):
 
 
 @pytest.mark.parametrize("path", ["/tests/colormap.test.js", "/package.json"])
-def test_frontend_developer_files_are_not_served(client, path):
-    assert client.get(path).status_code == 404
-    assert client.get("/js/main.js").status_code == 200
+def test_frontend_developer_files_are_not_served(client_for, path):
+    from pathlib import Path
+
+    frontend = Path(__file__).resolve().parents[2] / "frontend"
+    with client_for(frontend_dir=frontend) as client:
+        assert client.get(path).status_code == 404
+        assert client.get("/js/main.js").status_code == 200
