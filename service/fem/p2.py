@@ -37,11 +37,33 @@ def basis_gradients(grad_lambda: np.ndarray, lam: np.ndarray) -> np.ndarray:
     return out
 
 
+def _derivative_table(lam: np.ndarray) -> np.ndarray:
+    """∂φᵢ/∂λₐ (6, 3) of the six basis functions at barycentric point ``lam``."""
+    d = np.zeros((6, 3))
+    for i in range(3):
+        d[i, i] = 4.0 * lam[i] - 1.0
+    for s, (i, j) in enumerate(_SIDES):
+        d[3 + s, i], d[3 + s, j] = 4.0 * lam[j], 4.0 * lam[i]
+    return d
+
+
+def _reference_tensor() -> np.ndarray:
+    """(9, 36): Kᵉ = area · Σₐᵦ (∇λₐ·Λ∇λᵦ) Mᵃᵇ with Mᵃᵇᵢⱼ = (1/area) ∫ ∂φᵢ/∂λₐ ∂φⱼ/∂λᵦ dA,
+    integrated exactly by the edge-midpoint rule (the integrand has degree 2)."""
+    tables = [_derivative_table(lam) for lam in _QUAD]
+    m = sum(np.einsum("ia,jb->abij", d, d) for d in tables) / 3.0
+    return m.reshape(9, 36)
+
+
+_TENSOR = _reference_tensor()
+
+
 def local_stiffness(space: Space, conductivity: np.ndarray) -> np.ndarray:
-    """Element conduction matrices (E, 6, 6) in W/K for λ = (E, 2) [λx, λy] in W/(m·K)."""
+    """Element conduction matrices (E, 6, 6) in W/K for λ = (E, 2) [λx, λy] in W/(m·K).
+
+    Exact: the metric terms ∇λₐ·Λ∇λᵦ are constant per triangle, the rest is a fixed tensor.
+    """
     grad_lambda, area = barycentric_gradients(space.mesh)
-    local = np.zeros((len(area), 6, 6))
-    for lam in _QUAD:
-        g = basis_gradients(grad_lambda, lam)
-        local += np.einsum("eid,ejd->eij", g * conductivity[:, None, :], g)
-    return local * (area / 3.0)[:, None, None]
+    metric = np.einsum("ead,ebd->eab", grad_lambda * conductivity[:, None, :], grad_lambda)
+    metric *= area[:, None, None]
+    return (metric.reshape(-1, 9) @ _TENSOR).reshape(-1, 6, 6)
