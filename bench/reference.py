@@ -1,0 +1,111 @@
+"""Reference answers: each section solved once with P2 on a very fine mesh, cached on disk.
+
+The reference mesh is the finest of the engine's own level sequence (gmsh mesh graded towards
+junction vertices, then uniform splits) below ``REF_MAX_NODES``, solved directly (SuperLU) so
+no iterative tolerance enters. Its own uncertainty is reported as the change from the previous
+level of the same family (nested meshes, a quarter of the cell size): with the observed
+convergence rates that bounds the remaining error.
+Case 1 has an analytical solution: its probe reference is the series, exact.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import json
+import logging
+import time
+from pathlib import Path
+
+import numpy as np
+from sections import CASE_1_PROBES, case_1_series
+
+log = logging.getLogger(__name__)
+CACHE = Path(__file__).resolve().parent / "cache"
+REF_MAX_NODES = 250_000
+VERSION = 1
+
+
+def figures(model, solution) -> dict:
+    """The compared quantities of one solved level (design run; P2 or P1 alike)."""
+    from coldseam.thermal import results
+
+    run = solution.design
+    out: dict = {"nodes": int(solution.mesh.nodes), "dofs": int(solution.space.dofs)}
+    interior = np.flatnonzero(model.env_interior)
+    out["heat_flow"] = float(run.heat_flows[interior].sum()) if len(interior) else None
+    coupling = run.coupling
+    out["L2D"] = float(0.5 * (coupling[0, 1] + coupling[1, 0])) if len(coupling) == 2 else None
+    surfaces = results.surface_block(model, solution)
+    mins = [surfaces[model.env_ids[k]]["min_temperature"] for k in interior]
+    out["theta_si_min"] = float(min(mins)) if mins else None
+    out["probes"] = results.probe_block(model, solution)
+    return out
+
+
+def _solve_direct(model, mesh, probes):
+    """A level solved with SuperLU whatever its size (the reference must not iterate)."""
+    from coldseam.fem import solvers
+    from coldseam.thermal.solve import solve_level
+
+    limit = solvers.DIRECT_LIMIT
+    solvers.DIRECT_LIMIT = 10**9
+    try:
+        return solve_level(model, mesh, probes, 2)
+    finally:
+        solvers.DIRECT_LIMIT = limit
+
+
+def compute(request: dict) -> dict:
+    from coldseam.schema import parse_request
+    from coldseam.thermal.levels import mesh_levels
+    from coldseam.thermal.model import prepare
+
+    model = prepare(parse_request(request))
+    meshes = []
+    for mesh, probes in mesh_levels(model.classified):
+        if mesh.nodes > REF_MAX_NODES:
+            break
+        meshes.append((mesh, probes))
+    start = time.perf_counter()
+    fine = figures(model, _solve_direct(model, *meshes[-1]))
+    previous = figures(model, _solve_direct(model, *meshes[-3]))
+    out = {"fine": fine, "previous_same_family": previous,
+           "seconds": time.perf_counter() - start,
+           "uncertainty": {k: (abs(fine[k] - previous[k]) if fine[k] is not None else None)
+                           for k in ("heat_flow", "L2D", "theta_si_min")}}
+    if request["section"].get("name") == "ISO 10211 Case 1":
+        out["fine"]["probes"] = {f"r{r}c{c}": case_1_series(c / 8, 1 - r / 8)
+                                 for r, c in CASE_1_PROBES}
+        out["analytic_probes"] = True
+    return out
+
+
+def key(request: dict) -> str:
+    text = json.dumps(request, sort_keys=True) + f"|{VERSION}|{REF_MAX_NODES}"
+    return hashlib.sha256(text.encode()).hexdigest()[:20]
+
+
+def reference(name: str, request: dict) -> dict:
+    """The cached reference of ``request`` (computed and stored on first use)."""
+    CACHE.mkdir(exist_ok=True)
+    path = CACHE / f"ref-{name.replace(':', '_')}-{key(request)}.json"
+    if path.exists():
+        return json.loads(path.read_text())
+    log.info("computing the reference for %s (once)", name)
+    out = compute(request)
+    path.write_text(json.dumps(out, indent=1))
+    return out
+
+
+def errors(result: dict, ref: dict) -> dict:
+    """Absolute errors of figures ``result`` (see ``figures``) against a reference."""
+    fine = ref["fine"]
+    out = {}
+    for k in ("heat_flow", "L2D", "theta_si_min"):
+        ok = result.get(k) is not None and fine.get(k) is not None
+        out[k] = abs(result[k] - fine[k]) if ok else None
+    if fine["probes"] and result.get("probes"):
+        out["probes"] = max(abs(result["probes"][p] - v) for p, v in fine["probes"].items())
+    else:
+        out["probes"] = None
+    return out
