@@ -6,6 +6,13 @@ cd "$(dirname "$0")/.."
 
 python3 -m pip install --quiet --disable-pip-version-check -e '.[test]'
 
+# Optional: CHOLMOD for the direct solver (the engine falls back to SuperLU without it).
+if [ "$(id -u)" = "0" ] && ! python3 -c "import sksparse" 2>/dev/null; then
+  { apt-get update -qq && DEBIAN_FRONTEND=noninteractive apt-get install -y -qq libsuitesparse-dev \
+      >/dev/null && python3 -m pip install --quiet --disable-pip-version-check \
+      'scikit-sparse>=0.4.12,<0.5'; } || echo "scikit-sparse not installed: SuperLU is used" >&2
+fi
+
 if ! command -v chromium >/dev/null 2>&1; then
   if [ "$(id -u)" = "0" ]; then
     apt-get update -qq && DEBIAN_FRONTEND=noninteractive apt-get install -y -qq chromium >/dev/null

@@ -1,0 +1,52 @@
+"""The linear solvers agree with each other and refuse unconverged answers."""
+
+import numpy as np
+import pytest
+import scipy.sparse as sp
+
+from coldseam.errors import SolveFailed
+from coldseam.fem import solvers
+
+
+def conduction_like(n=40, contrast=1e3):
+    """A 2D five-point SPD matrix with a strong coefficient jump and a Robin-like shift."""
+    k = np.ones((n, n))
+    k[:, n // 2:] = 1.0 / contrast
+    idx = np.arange(n * n).reshape(n, n)
+    rows, cols, vals = [], [], []
+    for (a, b), w in [((idx[:, :-1], idx[:, 1:]), np.minimum(k[:, :-1], k[:, 1:])),
+                      ((idx[:-1], idx[1:]), np.minimum(k[:-1], k[1:]))]:
+        for i, j, v in zip(a.ravel(), b.ravel(), w.ravel(), strict=True):
+            rows += [i, j, i, j]
+            cols += [j, i, i, j]
+            vals += [-v, -v, v, v]
+    matrix = sp.coo_matrix((vals, (rows, cols)), shape=(n * n, n * n)).tocsc()
+    return (matrix + sp.eye(n * n, format="csc") * 1e-3).tocsc()
+
+
+def test_every_solver_meets_the_residual():
+    matrix = conduction_like()
+    rhs = np.random.default_rng(1).normal(size=(matrix.shape[0], 2))
+    candidates = [solvers.DirectSolver(matrix), solvers.MultigridSolver(matrix)]
+    cholmod = solvers._cholmod()
+    if cholmod is not None:
+        candidates.append(solvers.CholeskySolver(matrix, cholmod))
+    for solver in candidates:
+        x = solver.solve(rhs)
+        residual = np.linalg.norm(rhs - matrix @ x, axis=0) / np.linalg.norm(rhs, axis=0)
+        assert residual.max() < 1e-8, type(solver).__name__
+
+
+def test_without_cholmod_the_lu_solver_is_used(monkeypatch):
+    monkeypatch.setattr(solvers, "_cholmod", lambda: None)
+    assert isinstance(solvers.factorize(conduction_like(10)), solvers.DirectSolver)
+
+
+def test_an_unconverged_iterative_solve_is_an_error(monkeypatch):
+    matrix = conduction_like(30, contrast=1e6)
+    solver = solvers.MultigridSolver(matrix)
+    original = solver.hierarchy.solve
+    monkeypatch.setattr(solver.hierarchy, "solve",
+                        lambda b, **kw: original(b, **{**kw, "maxiter": 1}))
+    with pytest.raises(SolveFailed):
+        solver.solve(np.ones(matrix.shape[0]))
