@@ -41,11 +41,14 @@ class ConductionProblem:
 
     conductivity: (E, 2) [λx, λy] per triangle, W/(m·K).
     conductance: (B,) h = 1/Rs per boundary edge, W/(m²·K); ``np.inf`` for Rs = 0.
+    stiffness: the assembled conduction matrix of these conductivities on this space, when
+    already known (``with_conductance`` passes it on); assembled here otherwise.
     """
 
     space: Space
     conductivity: np.ndarray
     conductance: np.ndarray
+    stiffness: sp.csr_matrix | None = None
     matrix: sp.csr_matrix = field(init=False)
     fixed: np.ndarray = field(init=False)
     _solver: object = field(init=False, default=None)
@@ -53,19 +56,25 @@ class ConductionProblem:
     def __post_init__(self) -> None:
         family = FAMILIES[self.space.order]
         n = self.space.dofs
-        local = family.local_stiffness(self.space, self.conductivity)
-        stiffness = assemble(self.space.cell_dofs, local, n)
+        if self.stiffness is None:
+            local = family.local_stiffness(self.space, self.conductivity)
+            self.stiffness = assemble(self.space.cell_dofs, local, n)
         self.lengths = edge_lengths(self.space.mesh.points, self.space.mesh.boundary_edges)
         robin = np.isfinite(self.conductance)
         self.h = np.where(robin, self.conductance, 0.0)
         weight = self.h * self.lengths
         edge_mass = weight[:, None, None] * family.EDGE_MASS[None]
-        self.matrix = stiffness + assemble(self.space.edge_dofs, edge_mass, n)
+        self.matrix = self.stiffness + assemble(self.space.edge_dofs, edge_mass, n)
         self.robin = robin
         self.fixed_owner = self._fixed_owner()
         self.fixed = np.flatnonzero(self.fixed_owner >= 0)
         self.free = np.flatnonzero(self.fixed_owner < 0)
         self._family = family
+
+    def with_conductance(self, conductance: np.ndarray) -> ConductionProblem:
+        """The same space and conductivities with other surface conductances (the conduction
+        matrix is shared, not assembled again)."""
+        return ConductionProblem(self.space, self.conductivity, conductance, self.stiffness)
 
     def _fixed_owner(self) -> np.ndarray:
         """For each dof, the last known-temperature edge it lies on, or -1."""

@@ -44,12 +44,15 @@ def conductances(resistance: np.ndarray) -> np.ndarray:
         return np.where(resistance > 0, 1.0 / np.maximum(resistance, 1e-300), np.inf)
 
 
-def run(model: ThermalModel, space: Space, resistance: np.ndarray) -> Run:
-    """Solve with per-boundary surface resistances ``resistance`` for every environment."""
+def run(model: ThermalModel, space: Space, resistance: np.ndarray,
+        like: ConductionProblem | None = None) -> Run:
+    """Solve with per-boundary surface resistances ``resistance`` for every environment
+    (``like``: a problem on the same space whose conduction matrix can be shared)."""
     mesh = space.mesh
     group = mesh.boundary_group
-    problem = ConductionProblem(space, model.conductivities[mesh.material],
-                                conductances(resistance)[group])
+    conductance = conductances(resistance)[group]
+    problem = (like.with_conductance(conductance) if like is not None else
+               ConductionProblem(space, model.conductivities[mesh.material], conductance))
     n_env = len(model.env_temperature)
     env_of_edge = model.boundary_env[group]
     ambient = (env_of_edge[:, None] == np.arange(n_env)[None]).astype(float)
@@ -78,5 +81,6 @@ def solve_level(model: ThermalModel, mesh: Mesh, probe_nodes: np.ndarray,
     if model.has_condensation_run():
         same = np.array_equal(model.boundary_condensation_resistance, model.boundary_resistance)
         condensation = design if same else run(model, space,
-                                               model.boundary_condensation_resistance)
+                                               model.boundary_condensation_resistance,
+                                               like=design.problem)
     return LevelSolution(mesh, space, probe_nodes, design, condensation)
