@@ -58,7 +58,7 @@ def main(argv: list[str] | None = None) -> int:
     if "scaling" not in skip:
         sizes = [10_000, 30_000, 100_000] if args.quick else [10_000, 30_000, 100_000,
                                                               300_000, 1_000_000]
-        rows = scaling.run(sizes, [2, 1], timeout=300 if args.quick else 900)
+        rows = scaling.run(sizes, [2, 1], timeout=300 if args.quick else 400)
         out["scaling"] = {"rows": rows, "exponent": {
             f"P{order}": scaling.exponent([r for r in rows if r["order"] == order])
             for order in (1, 2)}}
@@ -86,7 +86,7 @@ def run_sections(quick: bool, only: set[str]) -> list[dict]:
         logging.info("section %s", name)
         ref = reference(name, request)
         rows.append(compare.section(name, request, ref, repeats=3 if quick else 5,
-                                    peer_budget=60 if quick else 240))
+                                    peer_budget=30 if quick else 60))
     return rows
 
 
