@@ -151,7 +151,46 @@ def build_partition(section: Section) -> Partition:
                  enumerate([face.exterior, *face.interiors])]
         faces.append(Face(material, rings))
     coords = np.array(sorted(points, key=points.get), float).reshape(-1, 2)
-    return Partition(coords, faces, extent, section.scale, pieces)
+    partition = Partition(coords, faces, extent, section.scale, pieces)
+    _check_near_misses(section, partition, polygons)
+    return partition
+
+
+def _check_near_misses(section: Section, partition: Partition, polygons: list[Polygon]) -> None:
+    """Refuse a corner closer than ``SLIVER × extent`` to an edge it is not on.
+
+    Such a near miss (a corner a hair off a neighbour's edge, a repeated point a hair from a
+    corner) is almost always drawing noise, and the mesh would need elements as small as the
+    gap along everything near it: millions of nodes for a gap of 1e-8 of the section.
+    """
+    pts = partition.points
+    segments = np.array(list(partition.segments()), int).reshape(-1, 2)
+    if not len(segments):
+        return
+    tol = SLIVER * partition.extent
+    lines = shapely.linestrings(np.stack([pts[segments[:, 0]], pts[segments[:, 1]]], axis=1))
+    point_index, segment_index = shapely.STRtree(lines).query(
+        shapely.points(pts), predicate="dwithin", distance=tol)
+    ends = segments[segment_index]
+    apart = (ends[:, 0] != point_index) & (ends[:, 1] != point_index)
+    if not apart.any():
+        return
+    k = int(np.flatnonzero(apart)[0])
+    corner, edge = pts[point_index[k]], segment_index[k]
+    gap = shapely.distance(shapely.points(corner), lines[edge])
+    i = _region_near(polygons, corner, tol)
+    raise InvalidSection(
+        f"region {i} ({section.regions[i].material}): a point of its outline lies only "
+        f"{gap / section.scale:.3g} {section.unit} from an edge it does not meet, near "
+        f"{where(section, *corner)}: make the outlines meet exactly, or keep them at least "
+        f"{tol / section.scale:.3g} {section.unit} apart", f"/section/regions/{i}/polygon")
+
+
+def _region_near(polygons: list[Polygon], xy: np.ndarray, tol: float) -> int:
+    """The last region whose outline passes within ``tol`` of ``xy`` (the one on top)."""
+    point = shapely.points(xy)
+    near = [i for i, p in enumerate(polygons) if shapely.distance(p.boundary, point) <= 2 * tol]
+    return near[-1] if near else len(polygons) - 1
 
 
 def _ring_indices(ring, points: dict, ccw: bool) -> list[int]:

@@ -1,0 +1,62 @@
+"""Inputs that once broke the engine, found by the generated-section tests, kept as they were."""
+
+from __future__ import annotations
+
+import time
+
+import pytest
+from robust_support import request_of, solve_or_refuse, two_sided
+
+from coldseam.errors import InvalidSection
+from coldseam.schema import parse_request
+from coldseam.thermal.evaluate import evaluate
+
+MATERIALS = [{"id": "a", "conductivity": 1.0}, {"id": "b", "conductivity": 0.04}]
+
+
+def _corner_off_an_edge(eps: float) -> dict:
+    """Region b has a point eps mm to the right of region a's edge x = 100."""
+    return two_sided([
+        {"material": "a", "polygon": [[0, 0], [100, 0], [100, 1000], [0, 1000]]},
+        {"material": "b", "polygon": [[100, 0], [200, 0], [200, 1000], [100 + eps, 500]]},
+    ], MATERIALS, 0, 200, 0, 1000)
+
+
+def _point_beside_a_corner(eps: float) -> dict:
+    """A repeated point eps mm short of a corner, on the same edge."""
+    return two_sided([{"material": "a", "polygon": [[0, 0], [100 - eps, 0], [100, 0],
+                                                    [100, 1000], [0, 1000]]}],
+                     MATERIALS[:1], 0, 100, 0, 1000)
+
+
+def _corner_slid_along_an_edge(eps: float) -> dict:
+    """Two boards sharing the edge x = 100; b's lower corner sits eps mm up that edge."""
+    return two_sided([
+        {"material": "a", "polygon": [[0, 0], [100, 0], [100, 1000], [0, 1000]]},
+        {"material": "b", "polygon": [[100, eps], [200, 0], [200, 1000], [100, 1000]]},
+    ], MATERIALS, 0, 200, 0, 1000)
+
+
+NEAR_MISSES = [_corner_off_an_edge, _point_beside_a_corner, _corner_slid_along_an_edge]
+
+
+@pytest.mark.parametrize("build", NEAR_MISSES)
+@pytest.mark.parametrize("eps", [1e-3, 1e-5])
+def test_near_missing_outlines_are_refused_at_once(build, eps):
+    # Found by the generated sections: a point 1e-5 mm off a neighbour's edge in a 1 m
+    # section made the mesh sizes follow the gap: 4.4 million boundary nodes at 1e-5 mm,
+    # 44 million (and the out-of-memory killer) at 1e-6 mm.
+    started = time.monotonic()
+    with pytest.raises(InvalidSection) as refused:
+        evaluate(parse_request(request_of(build(eps))))
+    assert time.monotonic() - started < 5
+    assert "from an edge it does not meet" in refused.value.message
+    assert f"{eps:.3g} mm" in refused.value.message
+    assert refused.value.field.startswith("/section/regions/")
+
+
+@pytest.mark.parametrize(("build", "clear"), zip(NEAR_MISSES, [-5.0, 5.0, 5.0], strict=True))
+def test_the_same_outlines_drawn_exactly_or_clearly_apart_solve(build, clear):
+    # (b's point 5 mm to the left lies clearly inside a: b is drawn over a there.)
+    assert solve_or_refuse(request_of(build(0.0))) == "solved"
+    assert solve_or_refuse(request_of(build(clear))) == "solved"
