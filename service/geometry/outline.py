@@ -158,6 +158,8 @@ def _check_connected(section, partition, segments, exposure) -> None:
         if len(faces) == 2:
             parent[root(faces[0])] = root(faces[1])
     exposed_roots = {root(segments[s][0]) for s in exposure}
+    _check_coupled(section, {(root(segments[s][0]), section.boundaries[b].environment)
+                             for s, b in exposure.items()})
     for k in range(n):
         if root(k) not in exposed_roots:
             face = partition.faces[k]
@@ -168,3 +170,21 @@ def _check_connected(section, partition, segments, exposure) -> None:
                 "touches no exposed boundary: it floats free of the rest, so its temperature "
                 "is undefined. Join it to the section or give it a boundary path",
                 "/section/regions")
+
+
+def _check_coupled(section, exposed: set[tuple[int, str]]) -> None:
+    """Every environment must share some connected part of the section with another one:
+    otherwise no heat can flow to or from it and its heat flow, L2D or Lij mean nothing."""
+    if len(section.environments) < 2:
+        raise InvalidSection("the section has only one environment: heat flows between two or "
+                             "more (add the other side, e.g. an exterior)", "/section/environments")
+    parts: dict[int, set[str]] = {}
+    for part, env in exposed:
+        parts.setdefault(part, set()).add(env)
+    coupled = {env for envs in parts.values() if len(envs) > 1 for env in envs}
+    for i, env in enumerate(section.environments):
+        if env.id not in coupled:
+            raise InvalidSection(
+                f"environment '{env.id}' is exposed only to parts of the section that touch no "
+                "other environment, so no heat can flow between it and the others: join the "
+                "parts, or check the boundary paths", f"/section/environments/{i}")

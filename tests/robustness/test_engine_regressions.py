@@ -60,3 +60,44 @@ def test_the_same_outlines_drawn_exactly_or_clearly_apart_solve(build, clear):
     # (b's point 5 mm to the left lies clearly inside a: b is drawn over a there.)
     assert solve_or_refuse(request_of(build(0.0))) == "solved"
     assert solve_or_refuse(request_of(build(clear))) == "solved"
+
+
+def test_parts_that_couple_no_environments_are_refused():
+    # Found by the generated sections: two boards apart, one exposed only outside and one
+    # only inside. Nothing can flow, and the result carried an energy-balance warning "off by
+    # 2.0" computed from rounding noise over a zero heat flow.
+    section = two_sided([
+        {"material": "a", "polygon": [[0, 0], [100, 0], [100, 400], [0, 400]]},
+        {"material": "b", "polygon": [[150, 500], [200, 500], [200, 1000], [150, 1000]]},
+    ], MATERIALS, 0, 200, 0, 1000)
+    with pytest.raises(InvalidSection) as refused:
+        evaluate(parse_request(request_of(section)))
+    assert refused.value.field == "/section/environments/0"
+    assert "no heat can flow" in refused.value.message
+
+
+def test_an_isolated_piece_beside_a_coupled_part_still_solves():
+    # The part that joins the environments carries the heat; a loose piece exposed outside
+    # only sits at the outside temperature and changes nothing (ISO 6946 U of the wall).
+    section = two_sided([
+        {"material": "a", "polygon": [[0, 0], [100, 0], [100, 1000], [0, 1000]]},
+    ], MATERIALS, 0, 100, 0, 1000)
+    section["regions"].append({"material": "b", "polygon": [[-50, 1100], [0, 1100],
+                                                            [0, 1200], [-50, 1200]]})
+    section["boundaries"][0]["path"] = [[0, 0], [0, 1200]]
+    result = evaluate(parse_request(request_of(section))).result
+    u_value = 1 / (0.04 + 0.1 / 1.0 + 0.13)
+    assert result["L2D"] == pytest.approx(u_value, rel=1e-6)
+
+
+def test_a_single_environment_is_refused():
+    # Found by the generated sections: with one environment nothing flows, and the result
+    # carried the same false energy-balance warning.
+    section = two_sided([{"material": "a", "polygon": [[0, 0], [100, 0], [100, 1000],
+                                                       [0, 1000]]}], MATERIALS, 0, 100, 0, 1000)
+    section["environments"] = section["environments"][:1]
+    section["boundaries"] = section["boundaries"][1:]
+    with pytest.raises(InvalidSection) as refused:
+        evaluate(parse_request(request_of(section)))
+    assert refused.value.field == "/section/environments"
+    assert "only one environment" in refused.value.message
