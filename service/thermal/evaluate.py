@@ -18,6 +18,7 @@ import numpy as np
 
 from coldseam import CAUTION, ENGINE_VERSION
 from coldseam.errors import LimitExceeded
+from coldseam.meshing.estimate import check_coarsest
 from coldseam.schema.evaluation import EvaluationRequest
 from coldseam.thermal import results
 from coldseam.thermal.field import field_document
@@ -51,6 +52,7 @@ def evaluate(request: EvaluationRequest, progress: Progress | None = None) -> Ev
     flanking = flanking_values(model)
     pair = results.psi_pair(model)
     report("meshing", 0.05)
+    check_coarsest(model.classified, request.options.max_nodes)
     levels, solution, warnings = _certify(model, flanking, pair, report)
     report("post-processing", 0.9)
     result = _result(model, flanking, pair, levels, solution, warnings)
