@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import numpy as np
+import scipy.sparse as sp
 
 from coldseam.fem.mesh import Mesh, edge_lookup, unique_edges
 from coldseam.fem.space import Space, barycentric_gradients
@@ -24,6 +25,18 @@ def space(mesh: Mesh) -> Space:
     bmid = edge_lookup(edges, mesh.boundary_edges) + n
     edge_dofs = np.column_stack([mesh.boundary_edges, bmid])
     return Space(mesh, 2, np.vstack([mesh.points, midpoints]), cell_dofs, edge_dofs)
+
+
+def vertex_prolongation(space: Space) -> sp.csr_matrix:
+    """(D, N) embedding of P1 (vertex values) in P2: vertices copied, midpoints averaged."""
+    n = space.mesh.nodes
+    sides = np.array([[3 + s, i, j] for s, (i, j) in enumerate(_SIDES)])
+    triples = space.cell_dofs[:, sides.ravel()].reshape(-1, 3)
+    triples = triples[np.unique(triples[:, 0], return_index=True)[1]]
+    rows = np.concatenate([np.arange(n), triples[:, 0], triples[:, 0]])
+    cols = np.concatenate([np.arange(n), triples[:, 1], triples[:, 2]])
+    values = np.concatenate([np.ones(n), np.full(2 * len(triples), 0.5)])
+    return sp.csr_matrix((values, (rows, cols)), shape=(space.dofs, n))
 
 
 def basis_gradients(grad_lambda: np.ndarray, lam: np.ndarray) -> np.ndarray:

@@ -4,13 +4,15 @@ Direct: sparse Cholesky (CHOLMOD through scikit-sparse, AMD ordering) when it is
 measured 1.6–3.5× faster than SuperLU on these systems (7k–500k unknowns); otherwise SuperLU
 with the minimum-degree ordering on AᵀA+... (``MMD_AT_PLUS_A``), no pivoting and symmetric
 mode, the fastest SuperLU options measured. Above the direct limit: conjugate gradients
-preconditioned by smoothed-aggregation AMG (pyamg), with the residual checked after every
+preconditioned by a two-level P2/P1 cycle for quadratic elements (coldseam.fem.pmultigrid),
+by smoothed-aggregation AMG (pyamg) for linear ones, with the residual checked after every
 solve: an unconverged solve is an error.
 """
 
 from __future__ import annotations
 
 import logging
+from collections.abc import Callable
 
 import numpy as np
 import scipy.sparse as sp
@@ -85,7 +87,10 @@ class MultigridSolver:
         return x
 
 
-def factorize(matrix: sp.csc_matrix) -> CholeskySolver | DirectSolver | MultigridSolver:
+def factorize(matrix: sp.csc_matrix, prolongation: Callable[[], sp.spmatrix] | None = None):
+    """A solver for the SPD ``matrix``: direct below the limits, else iterative — the P2/P1
+    two-level method when ``prolongation`` (the P1-in-P2 embedding on the free dofs, built on
+    demand) is given, smoothed-aggregation AMG otherwise."""
     cholmod = _cholmod()
     if cholmod is not None and matrix.shape[0] <= max(DIRECT_LIMIT, CHOLESKY_LIMIT):
         try:
@@ -94,4 +99,8 @@ def factorize(matrix: sp.csc_matrix) -> CholeskySolver | DirectSolver | Multigri
             log.warning("Cholesky factorisation failed (%s); using LU", exc)
     if matrix.shape[0] <= DIRECT_LIMIT:
         return DirectSolver(matrix)
+    if prolongation is not None:
+        from coldseam.fem.pmultigrid import TwoLevelSolver
+
+        return TwoLevelSolver(matrix, prolongation(), factorize, RELATIVE_TOLERANCE)
     return MultigridSolver(matrix)

@@ -88,8 +88,15 @@ class ConductionProblem:
     def solver(self):
         if self._solver is None:
             a_ff = self.matrix[self.free][:, self.free]
-            self._solver = factorize(a_ff.tocsc())
+            prolongation = self._prolongation if self.space.order == 2 else None
+            self._solver = factorize(a_ff.tocsc(), prolongation)
         return self._solver
+
+    def _prolongation(self) -> sp.csr_matrix:
+        """P1-in-P2 embedding restricted to the free dofs (free vertices as coarse dofs)."""
+        full = p2.vertex_prolongation(self.space)
+        vertices = self.free[self.free < self.space.mesh.nodes]
+        return full[self.free][:, vertices].tocsr()
 
     def load(self, ambient: np.ndarray) -> np.ndarray:
         """Right-hand side ∫_R h θ∞ φ ds for boundary temperatures ``ambient`` (B,) in °C."""

@@ -50,3 +50,34 @@ def test_an_unconverged_iterative_solve_is_an_error(monkeypatch):
                         lambda b, **kw: original(b, **{**kw, "maxiter": 1}))
     with pytest.raises(SolveFailed):
         solver.solve(np.ones(matrix.shape[0]))
+
+
+def layered_problem(refinements=5):
+    """P2 problem on a unit square split into a conductor and an insulator, Robin on one side
+    and a known temperature on the other."""
+    from coldseam.fem.mesh import Mesh, refine_uniform
+    from coldseam.fem.system import ConductionProblem, make_space
+
+    points = np.array([[0, 0], [0.5, 0], [1, 0], [1, 1], [0.5, 1], [0, 1]], float)
+    triangles = np.array([[0, 1, 4], [0, 4, 5], [1, 2, 3], [1, 3, 4]])
+    edges = np.array([[0, 5], [2, 3]])
+    mesh = Mesh(points, triangles, np.array([0, 0, 1, 1]), edges, np.array([0, 1]))
+    for _ in range(refinements):
+        mesh = refine_uniform(mesh)
+    lam = np.array([[160.0, 160.0], [0.03, 0.03]])[mesh.material]
+    conductance = np.where(mesh.boundary_group == 0, 7.7, np.inf)
+    return ConductionProblem(make_space(mesh, 2), lam, conductance)
+
+
+def test_two_level_p2_solver_matches_the_direct_solve(monkeypatch):
+    problem = layered_problem()
+    ambient = (problem.space.mesh.boundary_group == 0).astype(float)
+    direct = problem.solve(ambient)
+    iterative = layered_problem()
+    monkeypatch.setattr(solvers, "DIRECT_LIMIT", 100)
+    monkeypatch.setattr(solvers, "CHOLESKY_LIMIT", 100)
+    theta = iterative.solve(ambient)
+    from coldseam.fem.pmultigrid import TwoLevelSolver
+
+    assert isinstance(iterative.solver, TwoLevelSolver)
+    assert np.abs(theta - direct).max() < 1e-7
