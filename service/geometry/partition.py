@@ -11,6 +11,7 @@ from dataclasses import dataclass
 
 import numpy as np
 import shapely
+import shapely.errors
 from shapely.geometry import MultiLineString, Polygon
 
 from coldseam.errors import InvalidSection
@@ -20,6 +21,9 @@ from coldseam.schema.section import Section
 GRID = 1e-9
 #: Pieces thinner than this fraction of the extent (2·area/perimeter) are slivers.
 SLIVER = 1e-5
+#: Coordinates at most this many section extents from the origin keep the precision the
+#: grid and the mesher need (float64 resolves about 2e-16 of a coordinate).
+FAR = 1e5
 
 
 @dataclass
@@ -131,13 +135,18 @@ def _extent(geometry) -> float:
 
 def build_partition(section: Section) -> Partition:
     """Planar partition of the section: shared points, faces with materials, rings."""
+    _check_precision(section)
     polygons = region_polygons(section)
     extent = _extent(shapely.union_all(polygons))
     grid = 10.0 ** np.floor(np.log10(GRID * extent))  # a power of ten keeps round inputs exact
-    pieces = paint(section, polygons, grid)
-    lines = [ring for _, p in pieces for ring in [p.exterior, *p.interiors]]
-    noded = shapely.union_all(MultiLineString([list(r.coords) for r in lines]), grid_size=grid)
-    faces_geo = list(shapely.get_parts(shapely.polygonize(shapely.get_parts(noded))))
+    try:
+        pieces = paint(section, polygons, grid)
+        faces_geo = _noded_faces(pieces, grid)
+    except shapely.errors.GEOSException as exc:  # GEOS gave up on the overlaps
+        raise InvalidSection(
+            f"the overlapping regions could not be resolved into separate pieces "
+            f"({str(exc)[:100]}): look for outlines that nearly coincide, or overlap by a "
+            "hair", "/section/regions") from None
     tree = shapely.STRtree([p for _, p in pieces])
     points: dict[tuple[float, float], int] = {}
     faces = []
@@ -191,6 +200,26 @@ def _region_near(polygons: list[Polygon], xy: np.ndarray, tol: float) -> int:
     point = shapely.points(xy)
     near = [i for i, p in enumerate(polygons) if shapely.distance(p.boundary, point) <= 2 * tol]
     return near[-1] if near else len(polygons) - 1
+
+
+def _noded_faces(pieces: list[tuple[int, Polygon]], grid: float) -> list[Polygon]:
+    """Every face of the arrangement of the pieces' outlines, voids included."""
+    lines = [ring for _, p in pieces for ring in [p.exterior, *p.interiors]]
+    noded = shapely.union_all(MultiLineString([list(r.coords) for r in lines]), grid_size=grid)
+    return list(shapely.get_parts(shapely.polygonize(shapely.get_parts(noded))))
+
+
+def _check_precision(section: Section) -> None:
+    """Refuse a section drawn so far from the origin that its coordinates cannot resolve it."""
+    xy = np.array([p for r in section.regions for p in r.polygon], float)
+    extent = float(np.max(xy.max(axis=0) - xy.min(axis=0)))
+    far = float(np.max(np.abs(xy)))
+    if far > FAR * extent:
+        unit = section.unit
+        raise InvalidSection(
+            f"the section is {extent:.4g} {unit} across but lies {far:.4g} {unit} from the "
+            "origin: coordinates that far out cannot resolve it. Move the drawing near (0, 0) "
+            f"(within {FAR * extent:.3g} {unit})", "/section/regions")
 
 
 def _ring_indices(ring, points: dict, ccw: bool) -> list[int]:

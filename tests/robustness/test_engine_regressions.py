@@ -5,7 +5,7 @@ from __future__ import annotations
 import time
 
 import pytest
-from robust_support import request_of, solve_or_refuse, two_sided
+from robust_support import request_of, solve_or_refuse, two_sided, wall_request
 
 from coldseam.errors import InvalidSection
 from coldseam.schema import parse_request
@@ -101,3 +101,56 @@ def test_a_single_environment_is_refused():
         evaluate(parse_request(request_of(section)))
     assert refused.value.field == "/section/environments"
     assert "only one environment" in refused.value.message
+
+
+def _shifted(request: dict, offset: float) -> dict:
+    """The request with every coordinate moved by (offset, offset)."""
+    def move(points):
+        return [[x + offset, y + offset] for x, y in points]
+
+    section = request["section"]
+    for region in section["regions"]:
+        region["polygon"] = move(region["polygon"])
+    for boundary in section["boundaries"]:
+        boundary["path"] = move(boundary["path"])
+    for probe in section.get("probes", []):
+        probe["point"] = move([probe["point"]])[0]
+    for flanking in (request.get("psi") or {}).get("flanking", []):
+        if flanking.get("cut"):
+            flanking["cut"] = move(flanking["cut"])
+    return request
+
+
+def test_a_section_far_from_the_origin_is_refused_at_once():
+    # Found by the generated sections: sections of 5 to 12 mm drawn about 2e10 mm from the
+    # origin (float coordinates there step by about 4e-6 mm): GEOS raised "TopologyException:
+    # Ring edge missing", or gmsh ground for 17 s per mesh on points it could not tell apart.
+    # Here the example wall, moved as far.
+    started = time.monotonic()
+    with pytest.raises(InvalidSection) as refused:
+        evaluate(parse_request(_shifted(wall_request(), 1.6e10)))
+    assert time.monotonic() - started < 5
+    assert refused.value.field == "/section/regions"
+    assert "from the origin" in refused.value.message and "Move the drawing" in refused.value.message
+
+
+def test_a_section_a_hundred_metres_out_gives_the_same_result():
+    # ISO 6946: U = 1 / (Rse + Σ d/λ + Rsi) of the example wall, over its 1 m height.
+    u_value = 1 / (0.04 + 0.100 / 0.035 + 0.200 / 1.0 + 0.13)
+    result = evaluate(parse_request(_shifted(wall_request(), 1e5))).result
+    assert result["L2D"] == pytest.approx(u_value, rel=1e-6)
+
+
+def test_a_geometry_library_failure_is_a_refusal_naming_the_regions(monkeypatch):
+    import shapely.errors
+
+    import coldseam.geometry.partition as partition
+
+    def failing_paint(*args, **kwargs):
+        raise shapely.errors.GEOSException("TopologyException: Ring edge missing at 1 2")
+
+    monkeypatch.setattr(partition, "paint", failing_paint)
+    with pytest.raises(InvalidSection) as refused:
+        evaluate(parse_request(wall_request()))
+    assert refused.value.field == "/section/regions"
+    assert "could not be resolved" in refused.value.message
