@@ -1,0 +1,66 @@
+"""Sweep of the level-0 size constants (sizes.H_MAX, H_JUNCTION, GROWTH): for each setting and
+every benchmark section, the time to the certificate, whether it was met, and the errors
+against the cached references. ``python bench/sweep.py [--quick]``; prints one table.
+
+Used to choose the constants by measurement across section types, never against one test.
+"""
+
+from __future__ import annotations
+
+import argparse
+import itertools
+import sys
+import time
+from pathlib import Path
+
+sys.path.insert(0, str(Path(__file__).resolve().parent))
+
+from engine import figures_from_result  # noqa: E402
+from reference import errors, reference  # noqa: E402
+from sections import benchmark_sections  # noqa: E402
+
+GRID = {"H_MAX": [1 / 6, 1 / 10], "H_JUNCTION": [1 / 8, 1 / 16, 1 / 32],
+        "GROWTH": [0.5, 0.3]}
+
+
+def measure(parsed, ref) -> dict:
+    from coldseam.thermal.evaluate import evaluate
+
+    evaluate(parsed)
+    start = time.perf_counter()
+    result = evaluate(parsed).result
+    seconds = time.perf_counter() - start
+    err = errors(figures_from_result(result), ref)
+    return {"seconds": seconds, "met": result["mesh"]["target_met"],
+            "nodes": result["mesh"]["nodes"], "flow": err["heat_flow"],
+            "theta": err["theta_si_min"], "probes": err["probes"]}
+
+
+def main() -> int:
+    parser = argparse.ArgumentParser()
+    parser.add_argument("--quick", action="store_true")
+    args = parser.parse_args()
+    from coldseam.meshing import sizes
+    from coldseam.schema import parse_request
+
+    cases = [(n, parse_request(r), reference(n, r))
+             for n, r in benchmark_sections(True).items() if n != "facade" or not args.quick]
+    print("| H_MAX | H_JUNCTION | GROWTH | section | s | met | nodes | err Φ W/m | err θ K |")
+    print("|---|---|---|---|---|---|---|---|---|")
+    for h_max, h_junction, growth in itertools.product(*GRID.values()):
+        sizes.H_MAX, sizes.H_JUNCTION, sizes.GROWTH = h_max, h_junction, growth
+        total, unmet = 0.0, 0
+        for name, parsed, ref in cases:
+            m = measure(parsed, ref)
+            total += m["seconds"]
+            unmet += not m["met"]
+            print(f"| {h_max:.3g} | {h_junction:.3g} | {growth} | {name} | {m['seconds']:.3f} | "
+                  f"{m['met']} | {m['nodes']} | {m['flow'] or 0:.1e} | {m['theta'] or 0:.1e} |",
+                  flush=True)
+        print(f"| {h_max:.3g} | {h_junction:.3g} | {growth} | **all** | {total:.2f} | "
+              f"{unmet} unmet | | | |", flush=True)
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())
