@@ -87,7 +87,8 @@ class ConductionProblem:
     @property
     def solver(self):
         if self._solver is None:
-            a_ff = self.matrix[self.free][:, self.free]
+            every = len(self.free) == self.space.dofs  # no known temperatures: no slicing
+            a_ff = self.matrix if every else self.matrix[self.free][:, self.free]
             prolongation = self._prolongation if self.space.order == 2 else None
             self._solver = factorize(a_ff.tocsc(), prolongation)
         return self._solver
