@@ -23,6 +23,10 @@ from coldseam.meshing.sizes import plan
 
 TARGETS = {"default": (1e-3, 0.01), "iso": (1e-2, 0.1)}
 ISO_RULE = 0.01
+#: Changes within this fraction of the value are rounding, not discretisation (solves are
+#: accurate to ~1e-11): a field the elements represent exactly changes by ~1e-15 between
+#: levels, in random directions, and must not read as a diverging sequence.
+ROUNDOFF = 1e-10
 
 
 @dataclass
@@ -75,13 +79,19 @@ def tail_estimate(values: list[float | None], relative: bool) -> float | None:
     if len(v) < 3:
         return None
     scale = max(abs(v[-1]), 1e-300) if relative else 1.0
-    last = abs(v[-1] - v[-2]) / scale
+    noise = ROUNDOFF * (scale if relative else max(abs(v[-1]), 1.0))
+
+    def change(a: float, b: float) -> float:
+        """|a − b|, or 0 when it is only rounding (an exactly represented solution)."""
+        return 0.0 if abs(a - b) <= noise else abs(a - b)
+
+    last = change(v[-1], v[-2]) / scale
     if len(v) >= 5:
-        near, far = abs(v[-1] - v[-3]), abs(v[-3] - v[-5])
+        near, far = change(v[-1], v[-3]), change(v[-3], v[-5])
         ratio = (near / far) ** 0.5 if far > 0 else (0.0 if near == 0 else 2.0)
     else:
-        before = abs(v[-2] - v[-3])
-        ratio = abs(v[-1] - v[-2]) / before if before > 0 else (0.0 if last == 0 else 2.0)
+        before = change(v[-2], v[-3])
+        ratio = change(v[-1], v[-2]) / before if before > 0 else (0.0 if last == 0 else 2.0)
     if ratio > 1.2:
         return None
     ratio = min(max(ratio, 0.25), 0.9)
