@@ -87,6 +87,58 @@ class MultigridSolver:
         return x
 
 
+def is_direct(solver) -> bool:
+    return isinstance(solver, CholeskySolver | DirectSolver)
+
+
+class NearbySolver:
+    """Block CG on A preconditioned by the direct solver of a nearby matrix B: the same
+    conduction matrix with other surface resistances on some boundary edges, so A − B is a
+    boundary term of low rank and the iteration converges in a few steps (measured 8–10 to
+    1e-12 for the condensation run, Rsi 0.13 -> 0.25). Cheaper than a second factorisation:
+    7k dofs 19.9 -> 15.9 ms, 97k 1.44 -> 0.88 s, 147k 1.65 -> 1.08 s. Falls back to
+    ``fallback()`` (a factorisation of A) if it does not converge; the residual is checked."""
+
+    TOLERANCE = 1e-13
+    MAX_ITERATIONS = 60
+
+    def __init__(self, matrix: sp.csr_matrix, near, fallback: Callable) -> None:
+        self.matrix, self.near, self.fallback = matrix, near, fallback
+        self._direct = None
+
+    def solve(self, rhs: np.ndarray) -> np.ndarray:
+        if self._direct is not None:
+            return self._direct.solve(rhs)
+        block = rhs.reshape(rhs.shape[0], -1)
+        x = self._cg(block)
+        norm = np.linalg.norm(block, axis=0)
+        residual = np.linalg.norm(block - self.matrix @ x, axis=0)
+        if np.all(residual <= 1e-10 * np.maximum(norm, 1e-300)):
+            return x.reshape(rhs.shape)
+        log.debug("nearby-preconditioned CG stopped at %.1e; factorising", residual.max())
+        self._direct = self.fallback()
+        return self._direct.solve(rhs)
+
+    def _cg(self, b: np.ndarray) -> np.ndarray:
+        x, r = np.zeros_like(b), b.copy()
+        z = self.near.solve(r).reshape(b.shape)
+        d, rz = z.copy(), np.einsum("ij,ij->j", r, z)
+        goal = self.TOLERANCE * np.linalg.norm(b, axis=0)
+        for _ in range(self.MAX_ITERATIONS):
+            q = self.matrix @ d
+            dq = np.einsum("ij,ij->j", d, q)
+            alpha = np.divide(rz, dq, out=np.zeros_like(rz), where=dq != 0)
+            x += alpha * d
+            r -= alpha * q
+            if np.all(np.linalg.norm(r, axis=0) <= goal):
+                break
+            z = self.near.solve(r).reshape(b.shape)
+            rz_new = np.einsum("ij,ij->j", r, z)
+            beta = np.divide(rz_new, rz, out=np.zeros_like(rz), where=rz != 0)
+            d, rz = z + beta * d, rz_new
+        return x
+
+
 def factorize(matrix: sp.csc_matrix, prolongation: Callable[[], sp.spmatrix] | None = None):
     """A solver for the SPD ``matrix``: direct below the limits, else iterative — the P2/P1
     two-level method when ``prolongation`` (the P1-in-P2 embedding on the free dofs, built on

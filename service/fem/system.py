@@ -15,7 +15,7 @@ import scipy.sparse as sp
 
 from coldseam.fem import p1, p2
 from coldseam.fem.mesh import Mesh
-from coldseam.fem.solvers import factorize
+from coldseam.fem.solvers import NearbySolver, factorize, is_direct
 from coldseam.fem.space import Space, edge_lengths
 
 log = logging.getLogger(__name__)
@@ -52,6 +52,7 @@ class ConductionProblem:
     matrix: sp.csr_matrix = field(init=False)
     fixed: np.ndarray = field(init=False)
     _solver: object = field(init=False, default=None)
+    _nearby: ConductionProblem | None = field(init=False, default=None)
 
     def __post_init__(self) -> None:
         family = FAMILIES[self.space.order]
@@ -73,8 +74,12 @@ class ConductionProblem:
 
     def with_conductance(self, conductance: np.ndarray) -> ConductionProblem:
         """The same space and conductivities with other surface conductances (the conduction
-        matrix is shared, not assembled again)."""
-        return ConductionProblem(self.space, self.conductivity, conductance, self.stiffness)
+        matrix is shared, not assembled again). When the known-temperature dofs are the same,
+        its solves are preconditioned by this problem's factorisation (see NearbySolver)."""
+        other = ConductionProblem(self.space, self.conductivity, conductance, self.stiffness)
+        if np.array_equal(other.free, self.free):
+            other._nearby = self
+        return other
 
     def _fixed_owner(self) -> np.ndarray:
         """For each dof, the last known-temperature edge it lies on, or -1."""
@@ -90,7 +95,12 @@ class ConductionProblem:
             every = len(self.free) == self.space.dofs  # no known temperatures: no slicing
             a_ff = self.matrix if every else self.matrix[self.free][:, self.free]
             prolongation = self._prolongation if self.space.order == 2 else None
-            self._solver = factorize(a_ff.tocsc(), prolongation)
+            near = self._nearby
+            if near is not None and near._solver is not None and is_direct(near._solver):
+                self._solver = NearbySolver(a_ff.tocsr(), near._solver,
+                                            lambda: factorize(a_ff.tocsc(), prolongation))
+            else:
+                self._solver = factorize(a_ff.tocsc(), prolongation)
         return self._solver
 
     def _prolongation(self) -> sp.csr_matrix:

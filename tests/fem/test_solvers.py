@@ -81,3 +81,17 @@ def test_two_level_p2_solver_matches_the_direct_solve(monkeypatch):
 
     assert isinstance(iterative.solver, TwoLevelSolver)
     assert np.abs(theta - direct).max() < 1e-7
+
+
+def test_other_surface_resistances_are_solved_through_the_nearby_factorisation():
+    design = layered_problem(4)
+    ambient = (design.space.mesh.boundary_group == 0).astype(float)
+    design.solve(ambient)
+    conductance = np.where(design.space.mesh.boundary_group == 0, 4.0, np.inf)
+    condensation = design.with_conductance(conductance)
+    theta = condensation.solve(ambient)
+    assert isinstance(condensation.solver, solvers.NearbySolver)
+    from coldseam.fem.system import ConductionProblem
+
+    fresh = ConductionProblem(design.space, design.conductivity, conductance)
+    assert np.abs(theta - fresh.solve(ambient)).max() < 1e-9
