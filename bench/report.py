@@ -126,7 +126,7 @@ def targets(data: dict) -> list[tuple[str, str, bool | None]]:
     return rows
 
 
-def markdown(data: dict) -> str:
+def markdown(data: dict, notes: str = "") -> str:
     m = data["machine"]
     out = ["# Coldseam benchmark", "",
            f"Machine: {m['cpu']}, {m['cores']} cores, Python {m['python']}; {m['date']}; "
@@ -142,4 +142,6 @@ def markdown(data: dict) -> str:
     out += ["## Targets", "", "| target | measured | met |", "|---|---|---|"]
     for name, measured, ok in targets(data):
         out.append(f"| {name} | {measured} | {'yes' if ok else 'no'} |")
+    if notes:
+        out += ["", notes.strip()]
     return "\n".join(out) + "\n"
