@@ -41,9 +41,23 @@ def _conductivities(request: dict) -> dict[str, tuple[float, float]]:
 
 
 def mesh_section(section: dict, size: float):
-    """gmsh OCC + fragment + uniform size: points (N, 2) m, triangles (E, 3), material ids."""
+    """gmsh OCC + fragment + uniform size: points (N, 2) m, triangles (E, 3), material ids.
+
+    gmsh's options are global to the process: they are reset to gmsh's defaults before (the
+    engine's mesher sets its own) and after (its sizes must not leak into the engine)."""
     gmsh = _gmsh()
+    try:
+        return _mesh_section(gmsh, section, size)
+    finally:
+        gmsh.clear()
+        gmsh.option.restoreDefaults()
+        gmsh.option.setNumber("General.Terminal", 0)
+
+
+def _mesh_section(gmsh, section: dict, size: float):
     gmsh.clear()
+    gmsh.option.restoreDefaults()
+    gmsh.option.setNumber("General.Terminal", 0)
     gmsh.model.add("peer")
     occ = gmsh.model.occ
     scale = 0.001 if section["unit"] == "mm" else 1.0
