@@ -63,6 +63,7 @@ def _mesh_section(gmsh, section: dict, size: float):
     scale = 0.001 if section["unit"] == "mm" else 1.0
 
     def loop(ring):
+        ring = [p for k, p in enumerate(ring) if list(p) != list(ring[k - 1])]  # repeats
         pts = [occ.addPoint(x * scale, y * scale, 0.0) for x, y in ring]
         lines = [occ.addLine(a, b) for a, b in zip(pts, pts[1:] + pts[:1], strict=True)]
         return occ.addCurveLoop(lines)
@@ -194,6 +195,7 @@ def _figures(request, mesh, basis, x, robin_sets) -> dict:
     out = {"nodes": int(mesh.nvertices), "dofs": int(basis.N)}
     two = len(temps) == 2 and set(sides) == {"interior", "exterior"}
     delta = temps[sides.index("interior")] - temps[sides.index("exterior")] if two else 0.0
+    interior_nodes = [n for n in interior_nodes if len(n)]
     has_robin_interior = bool(interior_nodes)
     out["heat_flow"] = float(flow) if has_robin_interior else None
     out["L2D"] = float(flow / delta) if (has_robin_interior and two and delta) else None
