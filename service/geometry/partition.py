@@ -24,6 +24,9 @@ SLIVER = 1e-5
 #: Coordinates at most this many section extents from the origin keep the precision the
 #: grid and the mesher need (float64 resolves about 2e-16 of a coordinate).
 FAR = 1e5
+#: The smallest section taken, in metres: smaller than any building detail (likely a drawing
+#: in metres labelled "mm"), and far smaller ones lose the energy balance to rounding.
+SMALLEST = 1e-3
 
 
 @dataclass
@@ -210,10 +213,15 @@ def _noded_faces(pieces: list[tuple[int, Polygon]], grid: float) -> list[Polygon
 
 
 def _check_precision(section: Section) -> None:
-    """Refuse a section drawn so far from the origin that its coordinates cannot resolve it."""
+    """Refuse a section under SMALLEST across, or drawn so far from the origin that its
+    coordinates cannot resolve it."""
     xy = np.array([p for r in section.regions for p in r.polygon], float)
     extent = float(np.max(xy.max(axis=0) - xy.min(axis=0)))
     far = float(np.max(np.abs(xy)))
+    if extent * section.scale < SMALLEST:
+        raise InvalidSection(
+            f"the section is only {extent:.3g} {section.unit} across, smaller than any building "
+            f"detail: is the unit right (\"mm\" or \"m\")?", "/section/unit")
     if far > FAR * extent:
         unit = section.unit
         raise InvalidSection(

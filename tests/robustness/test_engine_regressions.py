@@ -125,10 +125,11 @@ def test_a_section_far_from_the_origin_is_refused_at_once():
     # Found by the generated sections: sections of 5 to 12 mm drawn about 2e10 mm from the
     # origin (float coordinates there step by about 4e-6 mm): GEOS raised "TopologyException:
     # Ring edge missing", or gmsh ground for 17 s per mesh on points it could not tell apart.
-    # Here the example wall, moved as far.
+    # Coordinates over 1e9 are refused by the schema now; here the example wall, 1 m across,
+    # 5e8 mm out.
     started = time.monotonic()
     with pytest.raises(InvalidSection) as refused:
-        evaluate(parse_request(_shifted(wall_request(), 1.6e10)))
+        evaluate(parse_request(_shifted(wall_request(), 5e8)))
     assert time.monotonic() - started < 5
     assert refused.value.field == "/section/regions"
     assert "from the origin" in refused.value.message and "Move the drawing" in refused.value.message
@@ -154,3 +155,29 @@ def test_a_geometry_library_failure_is_a_refusal_naming_the_regions(monkeypatch)
         evaluate(parse_request(wall_request()))
     assert refused.value.field == "/section/regions"
     assert "could not be resolved" in refused.value.message
+
+
+def _scaled_wall(factor: float) -> dict:
+    request = wall_request()
+    section = request["section"]
+    for region in section["regions"]:
+        region["polygon"] = [[x * factor, y * factor] for x, y in region["polygon"]]
+    for boundary in section["boundaries"]:
+        boundary["path"] = [[x * factor, y * factor] for x, y in boundary["path"]]
+    section["probes"] = []
+    request.pop("psi")
+    return request
+
+
+def test_a_section_smaller_than_a_millimetre_is_refused_as_a_unit_slip():
+    # Found by the generated sections: boards 1e-7 mm across solved with an energy balance
+    # off by 3e-4 (surface terms 1e-9 of the conduction terms, lost to rounding).
+    with pytest.raises(InvalidSection) as refused:
+        evaluate(parse_request(_scaled_wall(1e-7)))
+    assert refused.value.field == "/section/unit"
+    assert "is the unit right" in refused.value.message
+
+
+def test_a_section_of_a_few_millimetres_still_solves():
+    assert solve_or_refuse(_scaled_wall(0.01)) == "solved"  # 3 x 10 mm
+
