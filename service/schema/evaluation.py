@@ -8,7 +8,7 @@ from typing import Any, Literal
 from pydantic import Field, ValidationError, model_validator
 
 from coldseam.errors import InvalidSection
-from coldseam.schema.section import Point, Section, _Strict, check_references
+from coldseam.schema.section import MAX_COORDINATE, Point, Section, _Strict, check_references
 
 
 class Flanking(_Strict):
@@ -130,6 +130,10 @@ def _detail(err: dict[str, Any]) -> dict[str, str]:
         message = f"'{loc[-1]}' is not a field Coldseam knows here (misspelt?)"
     elif err["type"] == "finite_number":
         message = "must be a finite number (not NaN or infinity)"
+    elif abs((err.get("ctx") or {}).get("le", (err.get("ctx") or {}).get("ge", 0))) \
+            == MAX_COORDINATE:
+        message = (f"a coordinate must lie within ±{MAX_COORDINATE:g} (in the section unit); "
+                   f"got {err.get('input')}")
     return {"field": pointer, "message": message}
 
 

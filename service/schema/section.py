@@ -9,8 +9,12 @@ from pydantic import BaseModel, ConfigDict, Field, field_validator, model_valida
 
 from coldseam.errors import InvalidSection
 
+#: Largest coordinate magnitude taken (1000 km in mm): far beyond any drawing, and small
+#: enough that the geometry library's arithmetic on it stays finite.
+MAX_COORDINATE = 1e9
+Coordinate = Annotated[float, Field(ge=-MAX_COORDINATE, le=MAX_COORDINATE)]
 Point = Annotated[
-    tuple[float, float],
+    tuple[Coordinate, Coordinate],
     Field(description="A point [x, y] in the section unit."),
 ]
 

@@ -181,3 +181,13 @@ def test_a_section_smaller_than_a_millimetre_is_refused_as_a_unit_slip():
 def test_a_section_of_a_few_millimetres_still_solves():
     assert solve_or_refuse(_scaled_wall(0.01)) == "solved"  # 3 x 10 mm
 
+
+def test_a_coordinate_of_1e308_is_refused_naming_it():
+    # Found by the generated sections: a flanking cut from x = -1e308 raised GEOSException
+    # inside shapely (a 500).
+    request = wall_request()
+    request["psi"]["flanking"][0]["cut"][0][0] = -1e308
+    with pytest.raises(InvalidSection) as refused:
+        evaluate(parse_request(request))
+    assert refused.value.field == "/psi/flanking/0/cut/0/0"
+    assert "within ±1e+09" in refused.value.message
