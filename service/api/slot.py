@@ -73,12 +73,17 @@ class WorkerSlot:
 
     def _start(self) -> None:
         parent_conn, child_conn = self._ctx.Pipe()
-        self.process = self._ctx.Process(target=worker_main, name=self.name, daemon=True,
-                                         args=(child_conn, self._engine_spec))
-        self.process.start()
-        child_conn.close()
-        self.conn, self.ready = parent_conn, False
-        log.info("worker %s started (pid %s)", self.name, self.process.pid)
+        process = self._ctx.Process(target=worker_main, name=self.name, daemon=True,
+                                    args=(child_conn, self._engine_spec))
+        try:
+            process.start()
+        except BaseException:
+            parent_conn.close()  # a process that never started is not kept: kill() joins
+            raise
+        finally:
+            child_conn.close()
+        self.process, self.conn, self.ready = process, parent_conn, False
+        log.info("worker %s started (pid %s)", self.name, process.pid)
 
     def stop(self) -> None:
         """Ask the worker to stop; kill it if it does not."""
@@ -190,8 +195,12 @@ class WorkerSlot:
 
     def _replace(self) -> None:
         self.kill()
-        if not self.closed:
+        if self.closed:
+            return
+        try:
             self.start()
+        except (OSError, RuntimeError) as exc:  # the next job tries again
+            log.error("worker %s could not be replaced: %s", self.name, exc)
 
 
 def describe_exit(code: int | None) -> str:

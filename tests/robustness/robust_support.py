@@ -96,3 +96,22 @@ def solve_or_refuse(request: Any, require_converged: bool = True) -> str:
         return "refused"
     check_result(result, require_converged)
     return "solved"
+
+
+def singular_corner(side: float = 100.0) -> dict[str, Any]:
+    """A square held at -5 °C on the left and 20 °C on the top and right (no surface
+    resistance): the two temperatures meet at a corner, the heat flow there is unbounded, and
+    refinement never converges: it runs until the level or node limit."""
+    square = [[0, 0], [side, 0], [side, side], [0, side]]
+    section = two_sided([{"material": "a", "polygon": square}],
+                        [{"id": "a", "conductivity": 1.0}], 0, side, 0, side, rse=0.0, rsi=0.0)
+    section["boundaries"][1]["path"] = [[0, side], [side, side], [side, 0]]
+    return section
+
+
+def big_request(name: str = "singular corner") -> dict[str, Any]:
+    """A request that refines to a million nodes (seconds of work and hundreds of MiB)."""
+    section = singular_corner()
+    section["name"] = name
+    return {"section": section, "options": {"max_levels": 12, "max_nodes": 1_000_000,
+                                            "sensitivities": False}}
