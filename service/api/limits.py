@@ -15,7 +15,11 @@ def vertex_count(request: EvaluationRequest) -> int:
 
 
 def check_limits(request: EvaluationRequest, settings: Settings) -> None:
-    """Raise LimitExceeded when the request is larger than this server takes."""
+    """Raise LimitExceeded when the request is larger than this server takes.
+
+    A request that leaves ``options.max_nodes`` at its default gets this server's limit when
+    that is lower; one that asks for more than the limit is refused.
+    """
     regions = len(request.section.regions)
     if regions > settings.max_regions:
         raise LimitExceeded(f"the section has {regions} regions; this server takes at most "
@@ -25,6 +29,9 @@ def check_limits(request: EvaluationRequest, settings: Settings) -> None:
         raise LimitExceeded(f"the section has {vertices} vertices (polygons, holes and "
                             f"boundary paths); this server takes at most "
                             f"{settings.max_vertices}", "/section")
+    options = request.options
+    if "max_nodes" not in options.model_fields_set and options.max_nodes > settings.max_nodes:
+        options.max_nodes = settings.max_nodes  # the default, not asked for: this server's
     if request.options.max_nodes > settings.max_nodes:
         raise LimitExceeded(f"options.max_nodes {request.options.max_nodes} is above this "
                             f"server's limit of {settings.max_nodes} mesh nodes",
