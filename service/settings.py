@@ -10,7 +10,7 @@ from __future__ import annotations
 from functools import lru_cache
 from pathlib import Path
 
-from pydantic import Field
+from pydantic import Field, field_validator
 from pydantic_settings import BaseSettings, SettingsConfigDict
 
 DEFAULT_ENGINE = "coldseam.thermal.evaluate:evaluate"
@@ -36,6 +36,9 @@ class Settings(BaseSettings):
                             description="Evaluations that may wait for a worker; more get 429.")
     evaluation_timeout: float = Field(default=300.0, gt=0,
                                       description="Wall-time limit of one evaluation.")
+    worker_memory_mb: int = Field(default=4096, ge=0, description="Resident memory limit of "
+                                  "one worker process in MiB (0: none); over it the "
+                                  "evaluation is stopped and answered 413.")
     prestart_workers: bool = Field(default=True, description="Start the workers with the "
                                    "server, not with the first evaluation.")
     worker_start_method: str = Field(default="spawn", pattern="^(spawn|forkserver)$")
@@ -56,6 +59,13 @@ class Settings(BaseSettings):
     cors_origins: str | None = Field(default=None, description="Comma-separated origins.")
     frontend_dir: Path | None = Field(default_factory=_default_frontend_dir)
     log_level: str = "INFO"
+
+    @field_validator("worker_memory_mb")
+    @classmethod
+    def _room_to_start(cls, value: int) -> int:
+        if 0 < value < 256:
+            raise ValueError("a worker needs at least 256 MiB (0 means no limit)")
+        return value
 
     @property
     def database_path(self) -> Path:

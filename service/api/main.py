@@ -40,7 +40,7 @@ async def lifespan(app: FastAPI) -> AsyncIterator[None]:
         log.warning("%d unfinished evaluations of an earlier run marked failed", count)
     pool = WorkerPool(settings.workers, settings.queue_size, settings.engine,
                       settings.evaluation_timeout, settings.worker_start_method,
-                      settings.prestart_workers)
+                      settings.prestart_workers, settings.worker_memory_mb * 2**20)
     pool.start()
     app.state.evaluations = Evaluations(store, pool)
     log.info("serving with %d workers, data in %s, %s", settings.workers, settings.data_dir,

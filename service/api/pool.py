@@ -31,9 +31,10 @@ class WorkerPool:
     """``workers`` processes taking jobs from a queue of at most ``queue_size`` waiting."""
 
     def __init__(self, workers: int, queue_size: int, engine_spec: str, timeout: float,
-                 start_method: str = "spawn", prestart: bool = True) -> None:
+                 start_method: str = "spawn", prestart: bool = True,
+                 memory_limit: int = 0) -> None:
         ctx = multiprocessing.get_context(start_method)
-        self._slots = [WorkerSlot(ctx, engine_spec, f"coldseam-worker-{i}")
+        self._slots = [WorkerSlot(ctx, engine_spec, f"coldseam-worker-{i}", memory_limit)
                        for i in range(workers)]
         self._queue: queue.Queue[Job | None] = queue.Queue()
         self._queue_size = queue_size

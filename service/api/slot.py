@@ -1,7 +1,8 @@
 """One evaluation worker process and the pipe to it (see ``coldseam.api.pool``).
 
 A slot starts its worker, sends it one request at a time, relays progress, and stops it when
-it overruns the wall-time limit. When the worker dies (a segfault in gmsh, ``os._exit``, the
+it overruns the wall-time limit or its resident memory grows past the memory limit (read from
+``/proc`` every ``MEMORY_POLL`` seconds). When the worker dies (a segfault in gmsh, ``os._exit``, the
 out-of-memory killer) the request fails with a message that says so and a new worker is
 started in its place.
 """
@@ -9,6 +10,7 @@ started in its place.
 from __future__ import annotations
 
 import logging
+import os
 import signal
 import threading
 import time
@@ -17,13 +19,15 @@ from dataclasses import dataclass, field
 from multiprocessing.connection import Connection
 from typing import Any
 
-from coldseam.api.worker import worker_main
+from coldseam.api.worker import MEMORY_FIELD, OUT_OF_MEMORY, memory_message, worker_main
 
 log = logging.getLogger(__name__)
 
 STARTUP_TIMEOUT = 120.0  # s for a new worker to import the engine
 STOP_GRACE = 2.0  # s a worker gets to stop before it is killed
 EXIT_WAIT = 10.0  # s to wait for the exit code of a worker whose pipe has closed
+MEMORY_POLL = 0.1  # s between two looks at a worker's resident memory
+OVER_MEMORY = "over-memory"
 
 
 @dataclass
@@ -59,8 +63,9 @@ class Job:
 class WorkerSlot:
     """One worker process and the pipe to it, restarted whenever it is lost."""
 
-    def __init__(self, ctx: Any, engine_spec: str, name: str) -> None:
+    def __init__(self, ctx: Any, engine_spec: str, name: str, memory_limit: int = 0) -> None:
         self._ctx, self._engine_spec, self.name = ctx, engine_spec, name
+        self.memory_limit = memory_limit  # bytes of resident memory, 0 for no limit
         self.process: Any = None
         self.conn: Connection | None = None
         self.ready = False
@@ -74,7 +79,7 @@ class WorkerSlot:
     def _start(self) -> None:
         parent_conn, child_conn = self._ctx.Pipe()
         process = self._ctx.Process(target=worker_main, name=self.name, daemon=True,
-                                    args=(child_conn, self._engine_spec))
+                                    args=(child_conn, self._engine_spec, self.memory_limit))
         try:
             process.start()
         except BaseException:
@@ -146,8 +151,14 @@ class WorkerSlot:
     def _await_answer(self, job: Job, deadline: float, timeout: float) -> Outcome:
         while True:
             message = self._receive(deadline)
+            stage = job.extra.get("stage") or "starting"
+            if message == OVER_MEMORY:
+                self._replace()
+                log.warning("worker %s over the memory limit during %s; replaced", self.name,
+                            stage)
+                return failure("LimitExceeded", memory_message(self.memory_limit, stage),
+                               MEMORY_FIELD)
             if message is None or message == "eof":
-                stage = job.extra.get("stage") or "starting"
                 return self._lost(f"during {stage}", message, timeout)
             if message[0] == "progress":
                 job.extra["stage"] = message[1]
@@ -155,21 +166,28 @@ class WorkerSlot:
                 continue
             if message[0] == "done":
                 return Outcome(result=message[1], field=message[2])
+            if message[1] == OUT_OF_MEMORY:  # the worker ends itself; wait for that here
+                self._replace()
+                return failure("LimitExceeded", message[2], message[3])
             return failure(message[1], message[2], message[3])
 
     def _receive(self, deadline: float) -> Any:
-        """The next message, ``"eof"`` when the worker is gone, ``None`` at the deadline."""
+        """The next message, ``"eof"`` when the worker is gone, ``None`` at the deadline,
+        OVER_MEMORY when its resident memory is over the limit."""
         conn, process = self.conn, self.process
         if conn is None or process is None:
             return "eof"
+        wait = MEMORY_POLL if self.memory_limit else 1.0
         while (remaining := deadline - time.monotonic()) > 0:
             try:
-                if conn.poll(min(remaining, 1.0)):
+                if conn.poll(min(remaining, wait)):
                     return conn.recv()
             except (EOFError, OSError):
                 return "eof"
             if not process.is_alive():
                 return "eof"
+            if self.memory_limit and resident_bytes(process.pid) > self.memory_limit:
+                return OVER_MEMORY
         return None
 
     def _lost(self, when: str, message: Any, timeout: float | None = None) -> Outcome:
@@ -212,3 +230,15 @@ def describe_exit(code: int | None) -> str:
         except ValueError:
             return f"killed by signal {-code}"
     return f"exit code {code}"
+
+
+_PAGE = os.sysconf("SC_PAGE_SIZE")
+
+
+def resident_bytes(pid: int) -> int:
+    """Resident memory of process ``pid`` (0 when it is gone or /proc cannot say)."""
+    try:
+        with open(f"/proc/{pid}/statm") as statm:
+            return int(statm.read().split()[1]) * _PAGE
+    except (OSError, ValueError, IndexError):
+        return 0

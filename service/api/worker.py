@@ -4,16 +4,23 @@ The parent sends ``("run", request_dict)`` over a pipe; the worker answers with 
 ``("progress", stage, fraction)`` and then one of
 
 * ``("done", result, field)``  - the engine's Evaluation.result and Evaluation.field,
-* ``("error", kind, message, field)`` - a typed Coldseam error (kind: its class name).
+* ``("error", kind, message, field)`` - a typed Coldseam error (kind: its class name), or
+  kind OUT_OF_MEMORY when an allocation failed; the worker then ends.
 
 ``("stop",)`` ends the worker. Anything else going wrong ends the process with its traceback
 on stderr; the parent sees the exit code and replaces the worker.
+
+With a memory limit the worker's address space is capped a little above it (``RLIMIT_AS``), as
+a backstop to the parent's watch on its resident memory: an allocation past the cap fails at
+once, the request is answered as over the limit, and the worker ends so that a fresh one
+takes its place.
 """
 
 from __future__ import annotations
 
 import importlib
 import logging
+import resource
 import signal
 import time
 from collections.abc import Callable
@@ -27,6 +34,9 @@ log = logging.getLogger(__name__)
 Engine = Callable[..., Any]
 #: Progress messages closer together than this are dropped, except a change of stage.
 PROGRESS_INTERVAL = 0.2
+#: Address space allowed beyond the memory limit: mapped libraries, thread stacks and
+#: allocator arenas that are reserved but never resident (about 0.5 GiB once the engine ran).
+ADDRESS_HEADROOM = 1 << 30
 
 
 def load_engine(spec: str) -> Engine:
@@ -38,21 +48,36 @@ def load_engine(spec: str) -> Engine:
     return getattr(module, function_name)
 
 
-def worker_main(conn: Connection, engine_spec: str) -> None:
-    """Entry point of a worker process: evaluate requests until told to stop."""
+def worker_main(conn: Connection, engine_spec: str, memory_limit: int = 0) -> None:
+    """Entry point of a worker process: evaluate requests until told to stop.
+
+    ``memory_limit`` (bytes, 0 for none) caps the address space at it plus ADDRESS_HEADROOM.
+    """
     signal.signal(signal.SIGINT, signal.SIG_IGN)  # Ctrl-C is for the server, which stops us
+    if memory_limit:
+        cap = memory_limit + ADDRESS_HEADROOM
+        resource.setrlimit(resource.RLIMIT_AS, (cap, cap))
     engine = load_engine(engine_spec)
     conn.send(("ready",))
     while True:
         message = conn.recv()
         if message[0] != "run":
             return
-        conn.send(run_one(engine, message[1], _progress_sender(conn)))
+        reply = run_one(engine, message[1], _progress_sender(conn), memory_limit)
+        conn.send(reply)
+        if reply[1] == OUT_OF_MEMORY:
+            return  # memory may be fragmented or a library half-way: a fresh worker follows
+
+
+MEMORY_FIELD = "/options/max_nodes"
+#: Error kind of a worker out of memory: the parent answers LimitExceeded and replaces it.
+OUT_OF_MEMORY = "OutOfMemory"
 
 
 def run_one(engine: Engine, request_dict: dict[str, Any],
-            progress: Callable[[str, float], None]) -> tuple:
-    """Evaluate one request; typed errors become an ``("error", ...)`` reply."""
+            progress: Callable[[str, float], None], memory_limit: int = 0) -> tuple:
+    """Evaluate one request; typed errors (and running out of memory) become an
+    ``("error", ...)`` reply."""
     from coldseam.schema.evaluation import EvaluationRequest
 
     try:
@@ -60,7 +85,19 @@ def run_one(engine: Engine, request_dict: dict[str, Any],
         evaluation = engine(request, progress)
     except ColdseamError as exc:
         return ("error", type(exc).__name__, exc.message, exc.field)
+    except MemoryError:
+        return ("error", OUT_OF_MEMORY, memory_message(memory_limit), MEMORY_FIELD)
     return ("done", evaluation.result, evaluation.field)
+
+
+def memory_message(memory_limit: int, stage: str | None = None) -> str:
+    """What an evaluation stopped for needing too much memory is answered."""
+    limit = f"the {memory_limit / 2**20:.0f} MiB memory limit of a worker" if memory_limit \
+        else "the memory this machine has"
+    when = f" during {stage}" if stage else ""
+    return (f"the evaluation needed more than {limit} and was stopped{when}: ask for fewer "
+            "mesh nodes (options.max_nodes) or levels (options.max_levels), or simplify the "
+            "section")
 
 
 def _progress_sender(conn: Connection) -> Callable[[str, float], None]:
