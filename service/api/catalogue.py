@@ -42,7 +42,12 @@ QUANTITIES = {
     "min_temperature": ("condensation", "min_temperature"),
     "U": ("U",),
 }
-RESERVED = {"quantity", "format"}
+RESERVED = {"quantity", "format", "key"}
+KEY_PARAMETER = ("An API key, for callers that cannot send an Authorization header (spreadsheet "
+                 "web-service functions); accepted on this endpoint only. URLs end up in proxy "
+                 "and server logs, browser histories and the spreadsheet file: prefer the "
+                 "header wherever the client can send one, and give spreadsheets a key of "
+                 "their own.")
 PARAMETERS_BODY = {
     "required": False,
     "content": {"application/json": {
@@ -96,9 +101,11 @@ async def template_value(template_id: str, request: Request, evaluations: Evalua
                          settings: SettingsDep, owner: OwnerDep,
                          quantity: Annotated[str, Query(examples=["psi"])] = "psi",
                          format: Annotated[Literal["text", "csv"], Query()] = "text",
+                         key: Annotated[str | None, Query(description=KEY_PARAMETER)] = None,
                          ) -> PlainTextResponse:
     """One figure of a template evaluation as plain text; other query parameters are the
-    template's (e.g. ``?quantity=psi&insulation_thickness=160``)."""
+    template's (e.g. ``?quantity=psi&insulation_thickness=160``). On a server with API keys,
+    ``key`` may stand in for the Authorization header (see its caveat)."""
     wanted = [q.strip() for q in quantity.split(",") if q.strip()]
     unknown = [q for q in wanted if q not in QUANTITIES]
     if not wanted or unknown:
@@ -117,6 +124,9 @@ async def template_value(template_id: str, request: Request, evaluations: Evalua
         line = ",".join([*given.values(), *map(number, values)])
         return PlainTextResponse(f"{header}\n{line}\n", media_type="text/csv")
     return PlainTextResponse(number(values[0]) + "\n")
+
+
+template_value.query_key = True  # type: ignore[attr-defined]  # see deps.takes_query_key
 
 
 def templates() -> Any:

@@ -29,14 +29,26 @@ def get_owner(request: Request,
     if ring.open:
         return OPEN_OWNER
     challenge = {"WWW-Authenticate": "Bearer"}
-    if credentials is None or credentials.scheme.lower() != "bearer":
+    presented = None
+    if credentials is not None and credentials.scheme.lower() == "bearer":
+        presented = credentials.credentials
+    elif credentials is None and takes_query_key(request):
+        presented = request.query_params.get("key") or None
+    if presented is None:
         raise HTTPException(401, "this server needs an API key: send the header "
                             "'Authorization: Bearer <key>'", headers=challenge)
-    owner = ring.owner_of(credentials.credentials)
+    owner = ring.owner_of(presented)
     if owner is None:
         raise HTTPException(401, "the API key is not accepted by this server",
                             headers=challenge)
     return owner
+
+
+def takes_query_key(request: Request) -> bool:
+    """A GET of an endpoint marked ``query_key`` (the spreadsheet value endpoint, whose callers
+    cannot send headers) may carry the key as ``?key=``; no other endpoint may."""
+    endpoint = request.scope.get("endpoint")
+    return request.method == "GET" and getattr(endpoint, "query_key", False) is True
 
 
 EvaluationsDep = Annotated[Evaluations, Depends(get_evaluations)]
