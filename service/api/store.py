@@ -66,7 +66,9 @@ class Store:
         self._lock = threading.Lock()
         with self._lock:
             self._conn.execute("PRAGMA journal_mode=WAL")
-            self._conn.execute("PRAGMA synchronous=NORMAL")
+            # FULL: a result answered 200 is on disk, even if the machine loses power next
+            # (NORMAL keeps it across a killed process only); one fsync per result is cheap.
+            self._conn.execute("PRAGMA synchronous=FULL")
             self._conn.executescript(SCHEMA)
 
     def close(self) -> None:
