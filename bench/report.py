@@ -103,27 +103,51 @@ def targets(data: dict) -> list[tuple[str, str, bool | None]]:
                      f"worst {worst:.3f} s; over or uncertified: {', '.join(slow) or 'none'}",
                      not slow))
     if sections:
-        ratios = {n: (r["peer_lenient"] or {}).get("ratio") for n, r in sections.items()}
-        low = [n for n, v in ratios.items() if v is None or v < 5]
-        known = [v for v in ratios.values() if v is not None]
-        rows.append(("≥ 5× faster than the peer at equal accuracy on every section (lenient)",
-                     f"min ratio {min(known):.1f}; below 5× or unreached: {', '.join(low) or 'none'}"
-                     if known else "no ratio", not low))
+        rows += [_peer_target(sections, "strict"), _peer_target(sections, "lenient")]
     for r in data.get("scaling", {}).get("rows", []):
         if r["target_nodes"] == 1_000_000:
             ok = "error" not in r and r["seconds"] <= 20 and r["peak_gib"] <= 2 / 1.073741824
-            rows.append((f"1e6 nodes ≤ 20 s and ≤ 2 GB peak (P{r['order']})",
-                         r.get("error") or f"{r['seconds']:.1f} s, {r['peak_gib']:.2f} GiB", ok))
+            measured = r.get("error") or (f"{r['nodes']} nodes: {r['seconds']:.1f} s, "
+                                          f"{r['peak_gib']:.2f} GiB")
+            rows.append((f"1e6 nodes ≤ 20 s and ≤ 2 GB peak (P{r['order']}; largest size run)",
+                         measured, ok))
     if data.get("cli"):
         rows.append(("`coldseam evaluate` small section ≤ 1.0 s cold",
                      f"{data['cli']['median']:.3f} s", data["cli"]["median"] <= 1.0))
     four = next((r for r in data.get("service", []) if r["clients"] == 4), None)
     if four:
-        ok = four["throughput"] >= 4 and four["max"] <= 3 * four["p50"] and not four["failures"]
-        rows.append(("Service, 2 workers: ≥ 4 template evaluations/s, max ≤ 3× median at 4 "
-                     "clients", f"{four['throughput']:.2f}/s, max {four['max']:.2f} s vs "
-                     f"median {four['p50']:.2f} s", ok))
+        rows.append(("Service, 2 workers: ≥ 4 template evaluations/s (4 clients)",
+                     f"{four['throughput']:.2f}/s", four["throughput"] >= 4))
+        rows.append(("Service: no request slower than 3× the median at 4 clients",
+                     f"max {four['max']:.2f} s, median {four['p50']:.2f} s, "
+                     f"{four['failures']} failed",
+                     four["max"] <= 3 * four["p50"] and not four["failures"]))
     return rows
+
+
+def _peer_target(sections: dict, label: str) -> tuple[str, str, bool | None]:
+    """≥ 5× at equal accuracy; an unreached peer counts by its lower bound (its finest run
+    was not accurate enough, so it needs longer), inconclusive when that bound is below 5."""
+    low, unknown, shown = [], [], []
+    for name, r in sections.items():
+        hit = r[f"peer_{label}"]
+        if hit is not None:
+            shown.append(hit["ratio"])
+            if hit["ratio"] < 5:
+                low.append(f"{name} {hit['ratio']:.1f}×")
+        else:
+            bound = r["peer_last"]["seconds"] / r["coldseam"]["wall_median"]
+            if bound < 5:
+                unknown.append(f"{name} (> {bound:.1f}×)")
+    text = f"min measured ratio {min(shown):.1f}×" if shown else "no measured ratio"
+    text += f"; below 5×: {', '.join(low) or 'none'}"
+    if unknown:
+        text += f"; inconclusive: {', '.join(unknown)}"
+    name = {"strict": "≥ 5× faster than the peer at equal accuracy (Coldseam's achieved "
+                      "errors), every section",
+            "lenient": "≥ 5× faster than the peer at the certificate targets (lenient to the "
+                       "peer), every section"}[label]
+    return name, text, None if (unknown and not low) else not low and not unknown
 
 
 def markdown(data: dict, notes: str = "") -> str:
@@ -141,7 +165,8 @@ def markdown(data: dict, notes: str = "") -> str:
         out += _service(data.get("service", []), data.get("cli"))
     out += ["## Targets", "", "| target | measured | met |", "|---|---|---|"]
     for name, measured, ok in targets(data):
-        out.append(f"| {name} | {measured} | {'yes' if ok else 'no'} |")
+        verdict = "inconclusive" if ok is None else "yes" if ok else "no"
+        out.append(f"| {name} | {measured} | {verdict} |")
     if notes:
         out += ["", notes.strip()]
     return "\n".join(out) + "\n"

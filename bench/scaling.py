@@ -39,7 +39,9 @@ def _level_factor(classified, nodes: int) -> tuple[float, int]:
 
     mesh, _ = triangulate(classified, plan(classified, 1.0))
     splits = max(0, int(math.floor(math.log(nodes / (2 * mesh.nodes), 4))))
-    return math.sqrt(nodes / (mesh.nodes * 4**splits)), splits
+    factor = math.sqrt(nodes / (mesh.nodes * 4**splits))
+    probe, _ = triangulate(classified, plan(classified, factor))  # nodes grow below factor²
+    return factor * math.sqrt(nodes / (probe.nodes * 4**splits)), splits
 
 
 def _mesh(classified, factor: float, splits: int):
