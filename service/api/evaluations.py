@@ -91,8 +91,8 @@ async def create_from_request(request: Request, evaluations: Evaluations, owner:
 @router.get("", response_model=EvaluationPage)
 def list_evaluations(evaluations: EvaluationsDep, owner: OwnerDep,
                      limit: Annotated[int, Query(ge=1, le=100)] = 20,
-                     offset: Annotated[int, Query(ge=0)] = 0) -> EvaluationPage:
-    """The caller's evaluations, newest first."""
+                     offset: Annotated[int, Query(ge=0, le=2**62)] = 0) -> EvaluationPage:
+    """The caller's evaluations, newest first. (``offset`` stays within SQLite's integers.)"""
     records, total = evaluations.store.page(owner, limit, offset)
     items = [EvaluationSummary(id=r.id, name=r.name, status=r.status,
                                created_at=iso(r.created_at), **(r.summary or {}))
