@@ -12,7 +12,16 @@ from fastapi.middleware.cors import CORSMiddleware
 from fastapi.middleware.gzip import GZipMiddleware
 
 from coldseam import ENGINE_VERSION, __version__
-from coldseam.api import catalogue, errors, evaluations, frontend, imports, openapi, pictures
+from coldseam.api import (
+    catalogue,
+    errors,
+    evaluations,
+    fallback,
+    frontend,
+    imports,
+    openapi,
+    pictures,
+)
 from coldseam.api.auth import load_keys
 from coldseam.api.deps import SettingsDep, get_owner
 from coldseam.api.jobs import Evaluations
@@ -64,6 +73,7 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     for module in (evaluations, pictures, imports, catalogue):
         api.include_router(module.router)
     app.include_router(api)
+    fallback.install(app)
     app.add_api_route("/healthz", health, methods=["GET"], tags=["service"])
     errors.install(app)
     openapi.install(app)
