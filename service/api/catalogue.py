@@ -12,7 +12,7 @@ import dataclasses
 import json
 from typing import Annotated, Any, Literal
 
-from fastapi import APIRouter, HTTPException, Query, Request
+from fastapi import APIRouter, HTTPException, Path, Query, Request
 from fastapi.concurrency import run_in_threadpool
 from fastapi.responses import JSONResponse, PlainTextResponse, Response
 
@@ -27,10 +27,13 @@ from coldseam.api.evaluations import (
 )
 from coldseam.api.jobs import Evaluations
 from coldseam.api.limits import check_limits
+from coldseam.api.models import EvaluationAccepted
 from coldseam.errors import InvalidSection
 from coldseam.schema.evaluation import EvaluationRequest, parse_request
 
 router = APIRouter(tags=["templates and materials"])
+TemplateId = Annotated[str, Path(description="A template id (GET /api/v1/templates).",
+                                 examples=["wall_corner"])]
 
 #: Where each quantity of the value endpoint is in a result document.
 QUANTITIES = {
@@ -51,7 +54,8 @@ KEY_PARAMETER = ("An API key, for callers that cannot send an Authorization head
 PARAMETERS_BODY = {
     "required": False,
     "content": {"application/json": {
-        "schema": {"type": "object", "properties": {"parameters": {"type": "object"}}},
+        "schema": {"type": "object", "properties": {"parameters": {"type": "object"}},
+                   "additionalProperties": False},
         "examples": {"defaults": {"summary": "The template's defaults", "value": {}},
                      "thicker": {"summary": "Some parameters set",
                                  "value": {"parameters": {"insulation_thickness": 160}}}},
@@ -75,16 +79,17 @@ def list_templates() -> JSONResponse:
 
 @router.post("/templates/{template_id}/section", responses=ERRORS,
              openapi_extra={"requestBody": PARAMETERS_BODY})
-async def template_section(template_id: str, request: Request) -> JSONResponse:
+async def template_section(template_id: TemplateId, request: Request) -> JSONResponse:
     """The evaluation request (section, ψ and condensation blocks) a template builds."""
     parameters = await read_parameters(request)
     built = await run_in_threadpool(build, template_id, parameters)
     return JSONResponse(built)
 
 
-@router.post("/templates/{template_id}/evaluations", responses={200: RESULT, **ERRORS},
+@router.post("/templates/{template_id}/evaluations",
+             responses={200: RESULT, 202: {"model": EvaluationAccepted}, **ERRORS},
              openapi_extra={"requestBody": PARAMETERS_BODY})
-async def template_evaluation(template_id: str, request: Request,
+async def template_evaluation(template_id: TemplateId, request: Request,
                               evaluations: EvaluationsDep, settings: SettingsDep,
                               owner: OwnerDep, wait: bool = True) -> Response:
     """Build a template's section and evaluate it, as ``POST /api/v1/evaluations``."""
@@ -96,9 +101,11 @@ async def template_evaluation(template_id: str, request: Request,
 
 
 @router.get("/templates/{template_id}/value", response_class=PlainTextResponse,
-            responses={200: {"content": {"text/plain": {"example": "0.0613"}}}})
-async def template_value(template_id: str, request: Request, evaluations: EvaluationsDep,
-                         settings: SettingsDep, owner: OwnerDep,
+            responses={200: {"content": {"text/plain": {"example": "0.0613"},
+                                         "text/csv": {"example": "insulation_thickness,psi\n"
+                                                                 "160,0.0796661\n"}}}})
+async def template_value(template_id: TemplateId, request: Request,
+                         evaluations: EvaluationsDep, settings: SettingsDep, owner: OwnerDep,
                          quantity: Annotated[str, Query(examples=["psi"])] = "psi",
                          format: Annotated[Literal["text", "csv"], Query()] = "text",
                          key: Annotated[str | None, Query(description=KEY_PARAMETER)] = None,
@@ -167,6 +174,11 @@ async def read_parameters(request: Request) -> dict[str, Any]:
     if not isinstance(body, dict) or not isinstance(body.get("parameters", {}), dict):
         raise InvalidSection("the body must be {\"parameters\": {name: value, ...}}",
                              "/parameters")
+    for key in body:
+        if key != "parameters":  # a misspelt "parameters" would silently mean the defaults
+            raise InvalidSection(f"'{key}' is not a field Coldseam knows here (misspelt? the "
+                                 "body is {\"parameters\": {name: value, ...}})",
+                                 "/" + key.replace("~", "~0").replace("/", "~1"))
     return body.get("parameters", {})
 
 
