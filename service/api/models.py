@@ -16,6 +16,8 @@ class ErrorOut(BaseModel):
     kind: str = Field(default="", description="InvalidSection, MeshingFailed, LimitExceeded, "
                       "SolveFailed, WorkerCrashed, Timeout, QueueFull, ...")
     request_id: str = ""
+    errors: list[dict[str, str]] | None = Field(
+        default=None, description="Validation errors: every offending field and why.")
 
 
 class EvaluationAccepted(BaseModel):
