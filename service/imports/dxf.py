@@ -61,7 +61,8 @@ CHORD_MM = 0.05
 #: through on truncated or scrambled bytes (found by fuzzing truncated and altered files).
 _READ_ERRORS = (DXFError, ValueError, TypeError, LookupError, AttributeError, AssertionError,
                 StopIteration, struct.error, EOFError, RecursionError, OverflowError)
-_ENTITY_ERRORS = (DXFError, ValueError, TypeError, IndexError, ZeroDivisionError, OverflowError)
+_ENTITY_ERRORS = (DXFError, ValueError, TypeError, IndexError, ZeroDivisionError, OverflowError,
+                  RecursionError)  # ezdxf's flattening recurses on degenerate ellipses
 _BINARY_SENTINEL = b"AutoCAD Binary DXF\r\n\x1a\x00"
 
 
