@@ -9,6 +9,9 @@ from pydantic import BaseModel, ConfigDict, Field, field_validator, model_valida
 
 from coldseam.errors import InvalidSection
 
+#: Smallest λ taken, W/(m·K): ten times below vacuum insulation; far smaller ones make the
+#: section's conductances span more than float64 keeps, and the energy balance goes.
+MIN_CONDUCTIVITY = 1e-4
 #: Largest coordinate magnitude taken (1000 km in mm): far beyond any drawing, and small
 #: enough that the geometry library's arithmetic on it stays finite.
 MAX_COORDINATE = 1e9
@@ -50,6 +53,9 @@ class Material(_Strict):
                 raise ValueError(f"conductivity must be above 0 W/(m·K), got {lam}")
             if lam > 1e5:
                 raise ValueError(f"conductivity {lam} W/(m·K) is above any building material")
+            if lam < MIN_CONDUCTIVITY:
+                raise ValueError(f"conductivity {lam} W/(m·K) is below any building material "
+                                 "(vacuum insulation panels are about 0.004)")
         return value
 
     @model_validator(mode="after")

@@ -191,3 +191,21 @@ def test_a_coordinate_of_1e308_is_refused_naming_it():
         evaluate(parse_request(request))
     assert refused.value.field == "/psi/flanking/0/cut/0/0"
     assert "within ±1e+09" in refused.value.message
+
+
+def test_a_conductivity_of_1e_300_is_refused_naming_it():
+    # Found by the generated requests: mineral wool of λ = 1e-300 solved to a heat flow of
+    # 4e-13 W/m of rounding noise, with an energy balance "off by 2.0".
+    request = wall_request()
+    request["section"]["materials"][0]["conductivity"] = 1e-300
+    with pytest.raises(InvalidSection) as refused:
+        evaluate(parse_request(request))
+    assert refused.value.field == "/section/materials/0/conductivity"
+    assert "below any building material" in refused.value.message
+
+
+def test_conductivities_1e_4_to_1e5_still_balance():
+    request = wall_request(max_levels=4)
+    request["section"]["materials"][0]["conductivity"] = 1e-4
+    request["section"]["materials"][1]["conductivity"] = 1e5
+    assert solve_or_refuse(request) == "solved"
