@@ -79,4 +79,6 @@ def local_stiffness(space: Space, conductivity: np.ndarray) -> np.ndarray:
     grad_lambda, area = barycentric_gradients(space.mesh)
     metric = np.einsum("ead,ebd->eab", grad_lambda * conductivity[:, None, :], grad_lambda)
     metric *= area[:, None, None]
-    return (metric.reshape(-1, 9) @ _TENSOR).reshape(-1, 6, 6)
+    # einsum, not matmul: a BLAS call here started OpenBLAS threads whose spinning doubled
+    # the wall time of whole evaluations on a busy 2-core machine (and starves a 2nd worker).
+    return np.einsum("ea,ab->eb", metric.reshape(-1, 9), _TENSOR).reshape(-1, 6, 6)
