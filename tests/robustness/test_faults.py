@@ -108,7 +108,7 @@ def test_a_full_queue_answers_429_with_retry_after(client_for):
     with client_for(engine=GREEDY, queue_size=1) as client:
         slow = [wall_request() for _ in range(3)]
         for k, request in enumerate(slow):
-            request["section"]["description"] = f"sleep={3 + k * 0.001}"
+            request["section"]["description"] = f"sleep={1.5 + k * 0.001}"
         running = client.post("/api/v1/evaluations", params={"wait": "false"}, json=slow[0])
         _until(lambda: client.get(running.headers["location"]).json()["status"] == "running")
         queued = client.post("/api/v1/evaluations", params={"wait": "false"}, json=slow[1])
