@@ -5,10 +5,17 @@ from __future__ import annotations
 
 from typing import Any, Literal
 
-from pydantic import Field, ValidationError, model_validator
+from pydantic import Field, ValidationError, field_validator, model_validator
 
 from coldseam.errors import InvalidSection
-from coldseam.schema.section import MAX_COORDINATE, Point, Section, _Strict, check_references
+from coldseam.schema.section import (
+    MAX_COORDINATE,
+    Point,
+    Section,
+    _Strict,
+    check_references,
+    check_surface_resistance,
+)
 
 
 class Flanking(_Strict):
@@ -73,6 +80,11 @@ class CondensationRequest(_Strict):
         default=None, gt=0, lt=1,
         description="A fixed critical fRsi to judge against instead of the one derived from "
         "the indoor climate (e.g. 0.75, common UK practice for dwellings).")
+
+    @field_validator("interior_surface_resistance")
+    @classmethod
+    def _zero_or_real(cls, value: float) -> float:
+        return check_surface_resistance(value)
 
 
 class EngineOptions(_Strict):

@@ -12,6 +12,9 @@ from coldseam.errors import InvalidSection
 #: Smallest λ taken, W/(m·K): ten times below vacuum insulation; far smaller ones make the
 #: section's conductances span more than float64 keeps, and the energy balance goes.
 MIN_CONDUCTIVITY = 1e-4
+#: Smallest non-zero surface resistance taken, m²·K/W (outdoor surfaces in strong wind are
+#: about 0.02): a film of 1e-300 would overflow the solver's conductances.
+MIN_SURFACE_RESISTANCE = 1e-4
 #: Largest coordinate magnitude taken (1000 km in mm): far beyond any drawing, and small
 #: enough that the geometry library's arithmetic on it stays finite.
 MAX_COORDINATE = 1e9
@@ -92,6 +95,19 @@ class Boundary(_Strict):
         "(e.g. 0.13 on glazing).",
     )
     path: list[Point] = Field(min_length=2, description="Polyline along the exposed surface.")
+
+    @field_validator("surface_resistance", "condensation_surface_resistance")
+    @classmethod
+    def _zero_or_real(cls, value: float | None) -> float | None:
+        return check_surface_resistance(value)
+
+
+def check_surface_resistance(value: float | None) -> float | None:
+    """0 (a known surface temperature) or at least MIN_SURFACE_RESISTANCE."""
+    if value is not None and 0 < value < MIN_SURFACE_RESISTANCE:
+        raise ValueError(f"surface resistance {value:g} m²·K/W is below any real surface "
+                         f"({MIN_SURFACE_RESISTANCE:g}); use 0 for a known surface temperature")
+    return value
 
 
 class Probe(_Strict):

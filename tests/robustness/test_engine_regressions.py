@@ -209,3 +209,25 @@ def test_conductivities_1e_4_to_1e5_still_balance():
     request["section"]["materials"][0]["conductivity"] = 1e-4
     request["section"]["materials"][1]["conductivity"] = 1e5
     assert solve_or_refuse(request) == "solved"
+
+
+@pytest.mark.parametrize("pointer", [("section", "boundaries", 0, "surface_resistance"),
+                                     ("condensation", "interior_surface_resistance")])
+def test_a_surface_resistance_of_1e_300_is_refused_naming_it(pointer):
+    # Found by the generated requests: Rse = 1e-300 overflowed the solver's surface
+    # conductance; the result had the right L2D but an energy balance "off by 2.0".
+    request = wall_request()
+    node = request
+    for part in pointer[:-1]:
+        node = node[part]
+    node[pointer[-1]] = 1e-300
+    with pytest.raises(InvalidSection) as refused:
+        evaluate(parse_request(request))
+    assert refused.value.field == "/" + "/".join(str(p) for p in pointer)
+    assert "use 0 for a known surface temperature" in refused.value.message
+
+
+def test_a_surface_resistance_of_zero_still_solves():
+    request = wall_request()
+    request["section"]["boundaries"][0]["surface_resistance"] = 0.0
+    assert solve_or_refuse(request) == "solved"

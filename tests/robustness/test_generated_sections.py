@@ -74,7 +74,7 @@ def test_bad_numbers_are_refused_naming_their_field_or_solve(case):
             assert error.field == pointer, (error.field, pointer, error.message)
         return
     assert math.isfinite(value), pointer  # NaN and infinity never get through
-    assert all(math.isfinite(v) for v in result["heat_flows"].values())
+    check_result(result, require_converged=False)  # 3 levels: not always converged
 
 
 def _value_at(node, pointer: str) -> float:
