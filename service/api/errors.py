@@ -124,6 +124,12 @@ def _pointer(loc: Any) -> str:
 
 
 async def _http_error(request: Request, exc: StarletteHTTPException) -> Response:
+    if exc.status_code == 400 and "multipart" in str(exc.detail).lower():
+        # the form parser's own refusal: bad input like any other, so a 422 naming the body
+        body = error_body("InvalidSection", "the upload is not valid multipart form data: send "
+                          "the drawing as the form field 'file'", "/file",
+                          request_id_of(request))
+        return respond(request, body, 422)
     body = {"detail": exc.detail, "request_id": request_id_of(request)}
     return respond(request, body, exc.status_code, exc.headers)
 

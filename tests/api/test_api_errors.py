@@ -167,3 +167,12 @@ def _wait_for_status(client, evaluation_id: str, status: str) -> None:
             return
         time.sleep(0.05)
     raise AssertionError(f"{evaluation_id} never became {status}")
+
+
+def test_malformed_multipart_is_a_422_naming_the_file(client):
+    response = client.post(
+        "/api/v1/imports/dxf", content=b"--b\r\n[]--b",
+        headers={"Content-Type": "multipart/form-data; boundary=b"})
+    assert response.status_code == 422, response.text
+    assert response.json()["field"] == "/file"
+    assert "multipart" in response.json()["detail"]
