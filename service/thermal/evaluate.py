@@ -27,13 +27,15 @@ from coldseam.thermal.levels import (
     TARGETS,
     LevelFigures,
     compare,
-    mesh_levels,
+    first_level,
+    iso_comparison,
     met,
+    next_level,
     tail_estimate,
 )
 from coldseam.thermal.model import ThermalModel, prepare
 from coldseam.thermal.psi import FlankingU, flanking_values
-from coldseam.thermal.solve import LevelSolution, solve_level
+from coldseam.thermal.solve import LevelSolution, error_indicators, solve_level
 
 log = logging.getLogger(__name__)
 Progress = Callable[[str, float], None]
@@ -67,7 +69,8 @@ def _certify(model: ThermalModel, flanking: list[FlankingU], pair, report: Progr
     levels: list[LevelFigures] = []
     warnings: list[str] = []
     solution: LevelSolution | None = None
-    for k, (mesh, probes) in enumerate(mesh_levels(model.classified)):
+    mesh, probes = first_level(model.classified)
+    for k in range(options.max_levels):
         if mesh.nodes > options.max_nodes:
             if solution is None:
                 raise LimitExceeded(
@@ -88,6 +91,7 @@ def _certify(model: ThermalModel, flanking: list[FlankingU], pair, report: Progr
             warnings.append(f"refinement stopped at the level limit ({options.max_levels}) "
                             "before the accuracy target was met")
             break
+        mesh = next_level(mesh, error_indicators(model, solution), order)
     return levels, solution, warnings
 
 
@@ -95,6 +99,7 @@ def _result(model, flanking, pair, levels, solution: LevelSolution, warnings) ->
     options = model.request.options
     final = levels[-1]
     flow_target, temperature_target = TARGETS[options.accuracy]
+    iso = iso_comparison(levels)
     out = results.heat_flow_block(model, solution)
     out["psi"] = results.psi_block(model, solution, flanking, pair)
     out["probes"] = results.probe_block(model, solution)
@@ -103,14 +108,13 @@ def _result(model, flanking, pair, levels, solution: LevelSolution, warnings) ->
     out["mesh"] = {
         "nodes": int(final.nodes), "elements": int(final.elements), "dofs": int(final.dofs),
         "element": options.element,
-        "relative_change": final.relative_change,
-        "converged": bool(final.relative_change is not None and
-                          final.relative_change < ISO_RULE),
+        "relative_change": None if iso is None else iso[0],
+        "converged": bool(iso is not None and iso[0] < ISO_RULE),
         "target": {"relative_change": flow_target, "temperature_change": temperature_target},
         "target_met": met(levels, options.accuracy),
         "estimated_remaining_change": tail_estimate(
             [level.coupling_sum for level in levels], relative=True),
-        "compared_with_nodes": levels[-2].nodes if len(levels) > 1 else None,
+        "compared_with_nodes": None if iso is None else iso[1],
         "levels": [level.as_dict() for level in levels],
     }
     if options.sensitivities and pair is not None:

@@ -69,10 +69,12 @@ def level_figures(model, solution: LevelSolution, flanking: list[FlankingU], pai
     psi = float(coupling[pair] - sum_ul) if (pair and model.request.psi) else None
     checked = solution.condensation or run
     minimum = interior_minimum(model, checked)
+    design_minimum = interior_minimum(model, run)
     return LevelFigures(
         nodes=solution.mesh.nodes, dofs=solution.space.dofs, elements=solution.mesh.elements,
         heat_flow=float(0.5 * np.abs(run.heat_flows).sum()), coupling_sum=float(upper.sum()),
-        psi=psi, min_temperature=None if minimum is None else minimum[0])
+        psi=psi, min_temperature=None if minimum is None else minimum[0],
+        design_min_temperature=None if design_minimum is None else design_minimum[0])
 
 
 def heat_flow_block(model: ThermalModel, solution: LevelSolution) -> dict:

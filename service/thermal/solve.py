@@ -6,6 +6,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from coldseam.fem.indicators import residual_indicators
 from coldseam.fem.mesh import Mesh
 from coldseam.fem.space import Space
 from coldseam.fem.system import ConductionProblem, make_space
@@ -54,8 +55,7 @@ def run(model: ThermalModel, space: Space, resistance: np.ndarray,
     problem = (like.with_conductance(conductance) if like is not None else
                ConductionProblem(space, model.conductivities[mesh.material], conductance))
     n_env = len(model.env_temperature)
-    env_of_edge = model.boundary_env[group]
-    ambient = (env_of_edge[:, None] == np.arange(n_env)[None]).astype(float)
+    ambient = unit_ambient(model, mesh)
     unit = problem.solve(ambient)
     flows = np.empty((n_env, n_env))
     for j in range(n_env):
@@ -84,3 +84,48 @@ def solve_level(model: ThermalModel, mesh: Mesh, probe_nodes: np.ndarray,
                                                model.boundary_condensation_resistance,
                                                like=design.problem)
     return LevelSolution(mesh, space, probe_nodes, design, condensation)
+
+
+def unit_ambient(model: ThermalModel, mesh: Mesh) -> np.ndarray:
+    """(B, N) boundary temperatures of the unit solves: 1 on environment j's edges."""
+    env_of_edge = model.boundary_env[mesh.boundary_group]
+    return (env_of_edge[:, None] == np.arange(len(model.env_temperature))[None]).astype(float)
+
+
+def error_indicators(model: ThermalModel, solution: LevelSolution) -> np.ndarray:
+    """Where to refine: (E,) weights summing to about 1 per goal.
+
+    Goals: the heat flows (energy-norm residual indicators ηₖ² of every unit solve, design
+    and fRsi runs) and the minimum interior surface temperature of each run (goal-oriented:
+    ηₖ(θ)·ηₖ(z), with z the solution of the adjoint problem loaded at that surface point, so
+    refinement goes where the residual affects the point value). Each goal's weights are
+    normalised, so neither swamps the other.
+    """
+    from coldseam.thermal.results import interior_minimum
+
+    ambient = unit_ambient(model, solution.mesh)
+    runs = [solution.design]
+    if solution.condensation is not None and solution.condensation is not solution.design:
+        runs.append(solution.condensation)
+    weights = np.zeros(solution.mesh.elements)
+    for r in runs:
+        problem = r.problem
+        eta = residual_indicators(solution.space, problem.conductivity, problem.conductance,
+                                  r.unit, ambient)
+        weights += _normalised(eta)
+        minimum = interior_minimum(model, r)
+        if minimum is None or problem.fixed_owner[minimum[1]] >= 0:
+            continue
+        load = np.zeros(solution.space.dofs)
+        load[minimum[1]] = 1.0
+        dual = np.zeros(solution.space.dofs)
+        dual[problem.free] = problem.solver.solve(load[problem.free])
+        eta_dual = residual_indicators(solution.space, problem.conductivity,
+                                       problem.conductance, dual, np.zeros(len(ambient)))
+        weights += _normalised(np.sqrt(eta * eta_dual))
+    return weights
+
+
+def _normalised(values: np.ndarray) -> np.ndarray:
+    total = values.sum()
+    return values / total if total > 0 and np.isfinite(total) else np.zeros_like(values)
