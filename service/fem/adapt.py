@@ -17,7 +17,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from coldseam.fem.mesh import Mesh, edge_lookup, unique_edges
+from coldseam.fem.mesh import Mesh, edge_lookup
 
 
 def longest_edge_first(mesh: Mesh) -> Mesh:
@@ -46,7 +46,7 @@ def refine_marked(mesh: Mesh, marked: np.ndarray) -> tuple[Mesh, np.ndarray]:
     """Halve every side of the marked triangles, bisecting neighbours for conformity.
 
     Returns the refined mesh and, for each of its triangles, the triangle it came from."""
-    edges, tri_edges = unique_edges(mesh.triangles)
+    edges, tri_edges = mesh.sides
     wanted = np.zeros(len(edges), bool)
     wanted[tri_edges[np.asarray(marked, bool)].ravel()] = True
     split = closure(tri_edges, wanted)

@@ -19,7 +19,7 @@ from __future__ import annotations
 import numpy as np
 
 from coldseam.fem import p2
-from coldseam.fem.mesh import edge_lookup, unique_edges
+from coldseam.fem.mesh import edge_lookup
 from coldseam.fem.space import Space, barycentric_gradients
 
 _SIDES = [(0, 1), (1, 2), (2, 0)]
@@ -62,7 +62,7 @@ def _laplacian(space: Space, theta: np.ndarray, grad_lambda, conductivity) -> np
 
 def residual_indicators(space: Space, conductivity: np.ndarray, conductance: np.ndarray,
                         theta: np.ndarray, ambient: np.ndarray) -> np.ndarray:
-    """ηₖ² (E,) summed over the k solutions θ (D, k) with boundary temperatures (B, k)."""
+    """ηₖ² (E, k) of each of the k solutions θ (D, k) with boundary temperatures (B, k)."""
     mesh = space.mesh
     theta = theta.reshape(len(theta), -1)
     ambient = ambient.reshape(len(ambient), -1)
@@ -70,7 +70,7 @@ def residual_indicators(space: Space, conductivity: np.ndarray, conductance: np.
     at_vertices, at_mids = _vertex_and_midpoint_gradients(space, theta, grad_lambda)
     pts = mesh.points[mesh.triangles]
     mean_lambda = np.sqrt(conductivity[:, 0] * conductivity[:, 1])
-    edges, tri_edges = unique_edges(mesh.triangles)
+    edges, tri_edges = mesh.sides
     count = np.bincount(tri_edges.ravel(), minlength=len(edges))
 
     # Normal flux q·n (outward of the owning triangle) at (start, middle, end) of every side,
@@ -105,13 +105,13 @@ def residual_indicators(space: Space, conductivity: np.ndarray, conductance: np.
         jump[index[known]] = 0.0
 
     length = np.linalg.norm(mesh.points[edges[:, 1]] - mesh.points[edges[:, 0]], axis=1)
-    squared = (jump[:, 0] ** 2 + 4 * jump[:, 1] ** 2 + jump[:, 2] ** 2).sum(axis=1) * length / 6
+    squared = (jump[:, 0] ** 2 + 4 * jump[:, 1] ** 2 + jump[:, 2] ** 2) * length[:, None] / 6
     share = np.where(count == 2, 0.5, 1.0)
-    per_edge = share * length * squared / np.maximum(lam_edge, 1e-300)
+    per_edge = (share * length / np.maximum(lam_edge, 1e-300))[:, None] * squared
     eta = per_edge[tri_edges].sum(axis=1)
     if space.order == 2:
         diameter = np.max(np.stack([np.linalg.norm(pts[:, j] - pts[:, i], axis=1)
                                     for i, j in _SIDES], axis=1), axis=1)
-        residual = (_laplacian(space, theta, grad_lambda, conductivity) ** 2).sum(axis=1)
-        eta += diameter ** 2 / mean_lambda * area * residual
+        residual = _laplacian(space, theta, grad_lambda, conductivity) ** 2
+        eta += (diameter ** 2 / mean_lambda * area)[:, None] * residual
     return eta

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import cached_property
 
 import numpy as np
 
@@ -50,6 +51,11 @@ class Mesh:
     def elements(self) -> int:
         return len(self.triangles)
 
+    @cached_property
+    def sides(self) -> tuple[np.ndarray, np.ndarray]:
+        """``unique_edges(triangles)``, computed once per mesh."""
+        return unique_edges(self.triangles)
+
 
 def signed_areas(points: np.ndarray, triangles: np.ndarray) -> np.ndarray:
     """Signed area of each triangle (positive when counter-clockwise), m²."""
@@ -65,8 +71,12 @@ def unique_edges(triangles: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     (0-1, 1-2, 2-0).
     """
     sides = np.stack([triangles[:, [0, 1]], triangles[:, [1, 2]], triangles[:, [2, 0]]], axis=1)
-    flat = np.sort(sides.reshape(-1, 2), axis=1)
-    edges, inverse = np.unique(flat, axis=0, return_inverse=True)
+    flat = np.sort(sides.reshape(-1, 2), axis=1).astype(np.int64)
+    n = int(flat.max(initial=0)) + 1
+    # One int64 key per pair: a 1-D unique is several times faster than unique(axis=0) and
+    # sorts the same way (lexicographically by lower, then higher node).
+    keys, inverse = np.unique(flat[:, 0] * n + flat[:, 1], return_inverse=True)
+    edges = np.column_stack([keys // n, keys % n]).astype(triangles.dtype)
     return edges, inverse.reshape(-1, 3)
 
 

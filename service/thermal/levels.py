@@ -100,9 +100,10 @@ def refinement_depths(eta: np.ndarray, order: int, new_nodes: float) -> np.ndarr
     return depths(low)
 
 
-def next_level(mesh: Mesh, eta: np.ndarray, order: int,
-               growth: float = LEVEL_GROWTH) -> Mesh:
-    """The next nested level: the triangles refined as ``refinement_depths`` says."""
+def next_level(mesh: Mesh, eta: np.ndarray, order: int, growth: float | None = None) -> Mesh:
+    """The next nested level: the triangles refined as ``refinement_depths`` says, to about
+    ``growth`` (default LEVEL_GROWTH) times the nodes."""
+    growth = LEVEL_GROWTH if growth is None else growth
     depth = refinement_depths(eta, order, (growth - 1.0) * mesh.nodes)
     for _ in range(MAX_PASSES):
         marked = depth > 0

@@ -110,19 +110,22 @@ def error_indicators(model: ThermalModel, solution: LevelSolution) -> np.ndarray
     weights = np.zeros(solution.mesh.elements)
     for r in runs:
         problem = r.problem
-        eta = residual_indicators(solution.space, problem.conductivity, problem.conductance,
-                                  r.unit, ambient)
-        weights += _normalised(eta)
+        theta, boundary = r.unit, ambient
         minimum = interior_minimum(model, r)
-        if minimum is None or problem.fixed_owner[minimum[1]] >= 0:
-            continue
-        load = np.zeros(solution.space.dofs)
-        load[minimum[1]] = 1.0
-        dual = np.zeros(solution.space.dofs)
-        dual[problem.free] = problem.solver.solve(load[problem.free])
-        eta_dual = residual_indicators(solution.space, problem.conductivity,
-                                       problem.conductance, dual, np.zeros(len(ambient)))
-        weights += _normalised(np.sqrt(eta * eta_dual))
+        dual = minimum is not None and problem.fixed_owner[minimum[1]] < 0
+        if dual:
+            load = np.zeros(solution.space.dofs)
+            load[minimum[1]] = 1.0
+            z = np.zeros((solution.space.dofs, 1))
+            z[problem.free, 0] = problem.solver.solve(load[problem.free])
+            theta = np.hstack([theta, z])
+            boundary = np.hstack([ambient, np.zeros((len(ambient), 1))])
+        eta = residual_indicators(solution.space, problem.conductivity, problem.conductance,
+                                  theta, boundary)
+        primal = eta[:, :r.unit.shape[1]].sum(axis=1)
+        weights += _normalised(primal)
+        if dual:
+            weights += _normalised(np.sqrt(primal * eta[:, -1]))
     return weights
 
 
