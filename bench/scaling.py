@@ -1,18 +1,22 @@
 """Scaling of one level from 1e4 to 1e6 nodes: time and peak memory per stage.
 
-Each size runs in its own process (``python bench/scaling.py NODES ORDER``), so peak memory
-is that size's alone. The section is the large synthetic facade; the level is a gmsh mesh of
-the engine's size plan, scaled so that uniform splits (as the engine refines) reach NODES.
+Each size runs in its own process, so peak memory is that size's alone; one size alone:
+``python bench/scaling.py --element P1 --nodes 1e6`` (prints one JSON line; the older
+positional form ``python bench/scaling.py NODES ORDER`` still works). The section is the large
+synthetic facade; the level is a gmsh mesh of the engine's size plan, scaled so that uniform splits (as the engine refines) reach NODES.
 Stages: geometry, meshing (plan, gmsh, splits), solve_level (assembly of both runs,
 factorisation or AMG, the design and condensation unit solves), post-processing (figures,
 result blocks with the adjoint sensitivities, field document). Peak memory per stage is the
-resident high-water mark (VmHWM, reset before each stage).
+resident high-water mark (VmHWM, reset before each stage); CPU time (all threads) is given
+beside wall time, with the load average at the start.
 """
 
 from __future__ import annotations
 
+import argparse
 import json
 import math
+import os
 import subprocess
 import sys
 import time
@@ -68,16 +72,17 @@ def measure(nodes: int, order: int) -> dict:
     from coldseam.thermal.results import level_figures, psi_pair
     from coldseam.thermal.solve import solve_level
 
+    out: dict = {"order": order, "load_at_start": os.getloadavg()[0]}
     request = parse_request({**facade(), "options": {"element": f"P{order}",
                                                     "max_nodes": 4_000_000}})
-    out: dict = {"order": order}
     stage = {}
 
     def timed(name, fn, *args):
         _hwm_reset()
-        start = time.perf_counter()
+        start, cpu = time.perf_counter(), time.process_time()
         value = fn(*args)
-        stage[name] = {"seconds": time.perf_counter() - start, "peak_gib": _hwm()}
+        stage[name] = {"seconds": time.perf_counter() - start,
+                       "cpu_seconds": time.process_time() - cpu, "peak_gib": _hwm()}
         return value
 
     model = timed("geometry", prepare, request)
@@ -93,6 +98,7 @@ def measure(nodes: int, order: int) -> dict:
     timed("post-processing", post)
     out.update(nodes=mesh.nodes, dofs=solution.space.dofs, stages=stage,
                seconds=sum(s["seconds"] for s in stage.values()),
+               cpu_seconds=sum(s["cpu_seconds"] for s in stage.values()),
                peak_gib=max(s["peak_gib"] for s in stage.values()))
     return out
 
@@ -125,5 +131,19 @@ def exponent(rows: list[dict], key=lambda r: r["seconds"]) -> float | None:
     return float(np.polyfit(x, y, 1)[0])
 
 
+def main(argv: list[str] | None = None) -> int:
+    parser = argparse.ArgumentParser(description="one level of the facade at one size")
+    parser.add_argument("size", nargs="*", help="NODES ORDER (older form)")
+    parser.add_argument("--element", choices=("P1", "P2"), default="P1")
+    parser.add_argument("--nodes", type=float, default=1e6, help="target nodes, e.g. 1e6")
+    args = parser.parse_args(argv)
+    if args.size:
+        nodes, order = int(float(args.size[0])), int(args.size[1])
+    else:
+        nodes, order = int(args.nodes), int(args.element[1])
+    print(json.dumps(measure(nodes, order)))
+    return 0
+
+
 if __name__ == "__main__":
-    print(json.dumps(measure(int(sys.argv[1]), int(sys.argv[2]))))
+    sys.exit(main())
