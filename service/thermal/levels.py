@@ -35,7 +35,7 @@ ISO_RULE = 0.01
 #: levels, in random directions, and must not read as a diverging sequence.
 ROUNDOFF = 1e-10
 #: Each level has about this many times the nodes of the level before.
-LEVEL_GROWTH = 2.0
+LEVEL_GROWTH = 1.6
 #: At most this many passes of three-side bisection per level (a size ratio of 2⁸ per level).
 MAX_PASSES = 8
 #: "About half the nodes" for the ISO comparison.
@@ -154,9 +154,9 @@ def tail_estimate(values: list[float | None], relative: bool) -> float | None:
 
     Δₖ is the change from the level before (about half the nodes; the levels are nested). The
     ratio r per level is the larger of Δₖ/Δₖ₋₁ and, from four levels on, √(Δₖ/Δₖ₋₂), so one
-    lucky small change is not trusted; r is bounded to [0.25, 0.9] (a slow sequence counts as
-    0.9: a remaining change of 9·Δₖ). None when the changes clearly grow (r > 1.2) or there
-    are too few levels to judge.
+    lucky small change is not trusted; r is bounded to [0.25, 0.9] (a slow or irregular
+    sequence counts as 0.9: a remaining change of 9·Δₖ). None when the last change clearly
+    grows (Δₖ > 1.2·Δₖ₋₁) or there are too few levels to judge.
     """
     v = [x for x in values if x is not None]
     if len(v) < 3:
@@ -174,10 +174,10 @@ def tail_estimate(values: list[float | None], relative: bool) -> float | None:
 
     last = change(-1)
     r = ratio(last, change(-2), 1.0)
-    if len(v) >= 4:
-        r = max(r, ratio(last, change(-3), 0.5))
     if r > 1.2:
         return None
+    if len(v) >= 4:
+        r = max(r, ratio(last, change(-3), 0.5))
     r = min(max(r, 0.25), 0.9)
     return last / scale * r / (1 - r)
 
