@@ -24,3 +24,13 @@ def local_stiffness(space: Space, conductivity: np.ndarray) -> np.ndarray:
     grad, area = barycentric_gradients(space.mesh)
     scaled = grad * conductivity[:, None, :]
     return np.einsum("eid,ejd->eij", scaled, grad) * area[:, None, None]
+
+
+def element_products(space: Space, conductivity: np.ndarray, w: np.ndarray,
+                     theta: np.ndarray) -> np.ndarray:
+    """wₑᵀ Kᵉ θₑ per triangle (E,) in W/K·(units of w·θ), without forming Kᵉ:
+    A (λx ∂xw ∂xθ + λy ∂yw ∂yθ) with the constant gradients of the two P1 functions."""
+    grad, area = barycentric_gradients(space.mesh)
+    grad_w = np.einsum("eid,ei->ed", grad, w[space.cell_dofs])
+    grad_theta = np.einsum("eid,ei->ed", grad, theta[space.cell_dofs])
+    return np.einsum("ed,ed,ed->e", conductivity, grad_w, grad_theta) * area

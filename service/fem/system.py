@@ -175,9 +175,7 @@ def log_conductivity_sensitivity(problem: ConductionProblem, theta: np.ndarray,
     w = explicit.copy()
     w[problem.free] -= problem.solver.solve(c[problem.free])
     family = FAMILIES[problem.space.order]
-    local = family.local_stiffness(problem.space, problem.conductivity)
-    dofs = problem.space.cell_dofs
-    per_element = np.einsum("ei,eij,ej->e", w[dofs], local, theta[dofs])
+    per_element = family.element_products(problem.space, problem.conductivity, w, theta)
     return np.bincount(problem.space.mesh.material, weights=per_element, minlength=materials)
 
 
