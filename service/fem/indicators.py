@@ -9,7 +9,8 @@ unit temperature difference) is bounded by Σ ηₖ² with
 r_E: the jump of the normal heat flux across an interior side (w_E = ½, λ_E the larger
 neighbour λ), q·n − h(θ − θ∞) on a Robin side, q·n on an adiabatic side, nothing on a
 known-temperature side (w_E = 1, the triangle's λ). Flux residuals are linear (P2) or constant
-(P1) along a side and are integrated by Simpson's rule; the element residual vanishes for P1.
+(P1) along a side and are integrated by Simpson's rule (exact for them); the element residual
+vanishes for P1.
 Scaling by 1/λ makes the indicator measure the energy error whatever the conductivity
 contrast (a steel bridge in insulation).
 """
@@ -18,46 +19,55 @@ from __future__ import annotations
 
 import numpy as np
 
-from coldseam.fem import p2
 from coldseam.fem.mesh import edge_lookup
 from coldseam.fem.space import Space, barycentric_gradients
 
 _SIDES = [(0, 1), (1, 2), (2, 0)]
+#: _SIDE_OF[a][b]: the local side joining vertices a and b.
+_SIDE_OF = {(i, j): s for s, (i, j) in enumerate(_SIDES)} | {
+    (j, i): s for s, (i, j) in enumerate(_SIDES)}
 
 
-def _vertex_and_midpoint_gradients(space: Space, theta: np.ndarray, grad_lambda):
-    """∇θh (E, 3 vertices, 2, k) and (E, 3 side midpoints, 2, k)."""
+def vertex_gradients(space: Space, theta: np.ndarray, grad_lambda: np.ndarray) -> np.ndarray:
+    """∇θh (E, 3, 2, k) at each triangle's three vertices.
+
+    P2: θ = Σ θᵢ λᵢ(2λᵢ − 1) + Σ 4 θ_ij λᵢλⱼ, so at vertex a, ∂θ/∂λ_a = 3θ_a and
+    ∂θ/∂λ_b = 4θ_ab − θ_b (b ≠ a); ∇θ = Σ_b ∂θ/∂λ_b ∇λ_b. The gradient of a P2 field is linear
+    on the triangle, so these three values define it everywhere. P1: constant.
+    """
     values = theta[space.cell_dofs]  # (E, n, k)
+    g = grad_lambda[..., None]  # (E, 3, 2, 1)
     if space.order == 1:
-        g = np.einsum("eid,eik->edk", grad_lambda, values)
-        same = np.repeat(g[:, None], 3, axis=1)
-        return same, same
-    at_vertices = []
-    for i in range(3):
-        lam = np.zeros(3)
-        lam[i] = 1.0
-        at_vertices.append(np.einsum("eid,eik->edk", p2.basis_gradients(grad_lambda, lam), values))
-    at_mids = []
-    for i, j in _SIDES:
-        lam = np.zeros(3)
-        lam[i] = lam[j] = 0.5
-        at_mids.append(np.einsum("eid,eik->edk", p2.basis_gradients(grad_lambda, lam), values))
-    return np.stack(at_vertices, axis=1), np.stack(at_mids, axis=1)
+        constant = sum(g[:, b] * values[:, None, b] for b in range(3))
+        return np.repeat(constant[:, None], 3, axis=1)
+    out = np.empty((len(values), 3, 2, values.shape[2]))
+    for a in range(3):
+        total = 3.0 * values[:, None, a] * g[:, a]
+        for b in range(3):
+            if b != a:
+                total = total + (4.0 * values[:, None, 3 + _SIDE_OF[a, b]] -
+                                 values[:, None, b]) * g[:, b]
+        out[:, a] = total
+    return out
 
 
-def _laplacian(space: Space, theta: np.ndarray, grad_lambda, conductivity) -> np.ndarray:
-    """∇·Λ∇θh (E, k), constant on each P2 triangle."""
+def _divergence(space: Space, theta: np.ndarray, grad_lambda, conductivity) -> np.ndarray:
+    """∇·Λ∇θh (E, k), constant on each P2 triangle: Σ_ab ∂²θ/∂λ_a∂λ_b (∇λ_a·Λ∇λ_b) with
+    ∂²θ/∂λ_a² = 4θ_a and ∂²θ/∂λ_a∂λ_b = 4θ_ab."""
     values = theta[space.cell_dofs]
-    g = grad_lambda
-    hessian = np.zeros((len(g), 2, 2, theta.shape[1]))
-    for i in range(3):
-        hessian += 4.0 * np.einsum("ed,ef,ek->edfk", g[:, i], g[:, i], values[:, i])
-    for s, (i, j) in enumerate(_SIDES):
-        outer = np.einsum("ed,ef->edf", g[:, i], g[:, j])
-        hessian += 4.0 * np.einsum("edf,ek->edfk", outer + outer.transpose(0, 2, 1),
-                                   values[:, 3 + s])
-    return (conductivity[:, 0, None] * hessian[:, 0, 0] +
-            conductivity[:, 1, None] * hessian[:, 1, 1])
+    scaled = grad_lambda * conductivity[:, None, :]
+
+    def metric(a: int, b: int) -> np.ndarray:
+        return (scaled[:, a] * grad_lambda[:, b]).sum(axis=1)[:, None]
+
+    out = sum(4.0 * values[:, a] * metric(a, a) for a in range(3))
+    return out + sum(8.0 * values[:, 3 + s] * metric(i, j) for s, (i, j) in enumerate(_SIDES))
+
+
+def _accumulate(index: np.ndarray, values: np.ndarray, size: int) -> np.ndarray:
+    """Σ of the rows of ``values`` (n, m) with equal ``index`` (n,), as (size, m)."""
+    return np.stack([np.bincount(index, weights=values[:, c], minlength=size)
+                     for c in range(values.shape[1])], axis=1)
 
 
 def residual_indicators(space: Space, conductivity: np.ndarray, conductance: np.ndarray,
@@ -66,43 +76,47 @@ def residual_indicators(space: Space, conductivity: np.ndarray, conductance: np.
     mesh = space.mesh
     theta = theta.reshape(len(theta), -1)
     ambient = ambient.reshape(len(ambient), -1)
+    k = theta.shape[1]
     grad_lambda, area = barycentric_gradients(mesh)
-    at_vertices, at_mids = _vertex_and_midpoint_gradients(space, theta, grad_lambda)
+    gradient = vertex_gradients(space, theta, grad_lambda)  # (E, 3, 2, k)
+    flux = -gradient * conductivity[:, None, :, None]
     pts = mesh.points[mesh.triangles]
     mean_lambda = np.sqrt(conductivity[:, 0] * conductivity[:, 1])
     edges, tri_edges = mesh.sides
     count = np.bincount(tri_edges.ravel(), minlength=len(edges))
 
-    # Normal flux q·n (outward of the owning triangle) at (start, middle, end) of every side,
-    # with start/end in the edge's global orientation (lower node first).
-    jump = np.zeros((len(edges), 3, theta.shape[1]))
-    lam_edge = np.zeros(len(edges))
-    for s, (i, j) in enumerate(_SIDES):
+    # Normal flux q·n (outward of the owning triangle) at both ends of every side, in the
+    # edge's global orientation (lower node first); summed over the owners it is the jump.
+    ends = []
+    for i, j in _SIDES:
         d = pts[:, j] - pts[:, i]
-        normal = np.column_stack([d[:, 1], -d[:, 0]]) / np.linalg.norm(d, axis=1)[:, None]
-        flux_normal = [
-            -np.einsum("ed,edk->ek", normal * conductivity, grads)
-            for grads in (at_vertices[:, i], at_mids[:, s], at_vertices[:, j])
-        ]
-        forward = mesh.triangles[:, i] < mesh.triangles[:, j]
-        first = np.where(forward[:, None], flux_normal[0], flux_normal[2])
-        last = np.where(forward[:, None], flux_normal[2], flux_normal[0])
-        np.add.at(jump, tri_edges[:, s], np.stack([first, flux_normal[1], last], axis=1))
-        np.maximum.at(lam_edge, tri_edges[:, s], mean_lambda)
+        normal = (np.column_stack([d[:, 1], -d[:, 0]]) /
+                  np.linalg.norm(d, axis=1)[:, None])[..., None]
+        at_i = (flux[:, i] * normal).sum(axis=1)
+        at_j = (flux[:, j] * normal).sum(axis=1)
+        forward = (mesh.triangles[:, i] < mesh.triangles[:, j])[:, None]
+        ends.append(np.hstack([np.where(forward, at_i, at_j), np.where(forward, at_j, at_i)]))
+    index = tri_edges.T.ravel()
+    jump = _accumulate(index, np.concatenate(ends), len(edges)).reshape(-1, 2, k)
+    lam_edge = np.zeros(len(edges))
+    np.maximum.at(lam_edge, index, np.tile(mean_lambda, 3))
 
-    # Exposed sides: subtract the surface flux h(θ − θ∞), or drop the side (known θ).
+    # Simpson's rule on (start, middle, end): exact for the linear jumps inside; on exposed
+    # sides the surface flux h(θ − θ∞) is subtracted (quadratic along a P2 side), and sides
+    # of known temperature drop out.
+    jump = np.stack([jump[:, 0], 0.5 * (jump[:, 0] + jump[:, 1]), jump[:, 1]], axis=1)
     if len(mesh.boundary_edges):
-        index = edge_lookup(edges, mesh.boundary_edges)
-        ends = theta[space.edge_dofs[:, :2]]  # (B, 2, k)
-        middle = (theta[space.edge_dofs[:, 2]] if space.order == 2 else ends.mean(axis=1))
-        forward = mesh.boundary_edges[:, 0] < mesh.boundary_edges[:, 1]
-        start = np.where(forward[:, None], ends[:, 0], ends[:, 1])
-        end = np.where(forward[:, None], ends[:, 1], ends[:, 0])
-        surface = np.stack([start, middle, end], axis=1) - ambient[:, None, :]
+        where = edge_lookup(edges, mesh.boundary_edges)
+        values = theta[space.edge_dofs[:, :2]]  # (B, 2, k)
+        middle = theta[space.edge_dofs[:, 2]] if space.order == 2 else values.mean(axis=1)
+        forward = (mesh.boundary_edges[:, 0] < mesh.boundary_edges[:, 1])[:, None]
+        surface = np.stack([np.where(forward, values[:, 0], values[:, 1]), middle,
+                            np.where(forward, values[:, 1], values[:, 0])], axis=1)
+        surface = surface - ambient[:, None, :]
         known = ~np.isfinite(conductance)
         h = np.where(known, 0.0, conductance)
-        jump[index] -= h[:, None, None] * surface
-        jump[index[known]] = 0.0
+        jump[where] -= h[:, None, None] * surface
+        jump[where[known]] = 0.0
 
     length = np.linalg.norm(mesh.points[edges[:, 1]] - mesh.points[edges[:, 0]], axis=1)
     squared = (jump[:, 0] ** 2 + 4 * jump[:, 1] ** 2 + jump[:, 2] ** 2) * length[:, None] / 6
@@ -112,6 +126,6 @@ def residual_indicators(space: Space, conductivity: np.ndarray, conductance: np.
     if space.order == 2:
         diameter = np.max(np.stack([np.linalg.norm(pts[:, j] - pts[:, i], axis=1)
                                     for i, j in _SIDES], axis=1), axis=1)
-        residual = _laplacian(space, theta, grad_lambda, conductivity) ** 2
+        residual = _divergence(space, theta, grad_lambda, conductivity) ** 2
         eta += (diameter ** 2 / mean_lambda * area)[:, None] * residual
     return eta

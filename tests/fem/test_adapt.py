@@ -123,3 +123,21 @@ def test_indicators_point_at_the_reentrant_corner(order):
     eta = residual_indicators(space, conductivity, conductance, theta, ambient)[:, 0]
     worst = lshape.points[lshape.triangles[np.argmax(eta)]]
     assert np.isclose(worst, [0.5, 0.5]).all(axis=1).any()
+
+
+def test_closed_form_vertex_gradients_match_the_basis_functions():
+    """The indicator's closed-form P2 vertex gradients against the element's own basis."""
+    from coldseam.fem import p2
+    from coldseam.fem.indicators import vertex_gradients
+    from coldseam.fem.space import barycentric_gradients
+
+    mesh = longest_edge_first(square(3))
+    space = make_space(mesh, 2)
+    theta = np.random.default_rng(7).normal(size=(space.dofs, 2))
+    grad_lambda, _ = barycentric_gradients(mesh)
+    closed = vertex_gradients(space, theta, grad_lambda)
+    for a in range(3):
+        lam = np.eye(3)[a]
+        basis = p2.basis_gradients(grad_lambda, lam)  # (E, 6, 2)
+        direct = np.einsum("eid,eik->edk", basis, theta[space.cell_dofs])
+        assert np.allclose(closed[:, a], direct, atol=1e-12)
