@@ -10,6 +10,9 @@ __version__ = "0.1.0"
 #: part of every evaluation id, so stored results never outlive their engine.
 ENGINE_VERSION = "coldseam-engine-1"
 
+#: The engine the service and ``coldseam evaluate`` run unless ``COLDSEAM_ENGINE`` names another.
+DEFAULT_ENGINE = "coldseam.thermal.evaluate:evaluate"
+
 CAUTION = (
     "Figures from Coldseam are engineering estimates. They must be checked by a competent "
     "person before they are relied on; local building codes and licensed professional "

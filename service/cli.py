@@ -115,10 +115,9 @@ def cmd_evaluate(args: argparse.Namespace) -> int:
 
 def evaluate_document(data: object) -> dict:
     """The result document (with ``id``) of an evaluation request or bare section."""
-    from coldseam import CAUTION
+    from coldseam import CAUTION, DEFAULT_ENGINE
     from coldseam.api.worker import load_engine
     from coldseam.schema.evaluation import parse_request, request_digest
-    from coldseam.settings import DEFAULT_ENGINE
 
     request = parse_request(data)
     engine = load_engine(os.environ.get("COLDSEAM_ENGINE", DEFAULT_ENGINE))

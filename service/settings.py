@@ -13,7 +13,7 @@ from pathlib import Path
 from pydantic import Field, field_validator
 from pydantic_settings import BaseSettings, SettingsConfigDict
 
-DEFAULT_ENGINE = "coldseam.thermal.evaluate:evaluate"
+from coldseam import DEFAULT_ENGINE
 
 
 def _default_frontend_dir() -> Path | None:

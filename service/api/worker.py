@@ -24,10 +24,12 @@ import resource
 import signal
 import time
 from collections.abc import Callable
-from multiprocessing.connection import Connection
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from coldseam.errors import ColdseamError
+
+if TYPE_CHECKING:  # only an annotation here: `coldseam evaluate` need not load multiprocessing
+    from multiprocessing.connection import Connection
 
 log = logging.getLogger(__name__)
 
