@@ -13,7 +13,6 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.spatial import cKDTree
 
 from coldseam.geometry.outline import Classified
 
@@ -26,6 +25,13 @@ THIN_ASPECT = 12.0
 SAMPLES = 24
 #: Junction-vertex sizes shrink as factor^VERTEX_POWER from level to level.
 VERTEX_POWER = 1.0
+#: h(x) takes the minimum over this many nearest junction vertices (all of them when fewer).
+NEAREST = 8
+#: Up to this many junction vertices the nearest ones are found by brute force in numpy, which
+#: spares a cold start the import of scipy.spatial (≈ 50 ms); above it, by a k-d tree.
+BRUTE_FORCE_VERTICES = 32
+#: Query points per brute-force chunk (chunk × vertices distances in memory at once).
+CHUNK = 4096
 
 
 @dataclass
@@ -41,14 +47,71 @@ class SegmentPlan:
         return self._graded(np.atleast_2d(xy))
 
     def _graded(self, xy: np.ndarray) -> np.ndarray:
-        return _graded(xy, self._tree, self._vertex_size, self.h_max, self._growth)
+        return _graded(xy, self._vertices, self._vertex_size, self.h_max, self._growth)
 
 
-def _graded(xy, tree, vertex_size, h_max, growth) -> np.ndarray:
-    k = min(8, len(vertex_size))
-    dist, idx = tree.query(xy, k=k)
+class JunctionIndex:
+    """The junction vertices, for the minimum of hᵥ + g·|x − v| over the NEAREST of them.
+
+    Brute force while there are few vertices; a scipy k-d tree (built on first use) otherwise,
+    and for the rare query point whose NEAREST-th neighbour is tied with another one of a
+    different size, where the k-d tree's choice between them decides the result.
+    """
+
+    def __init__(self, vertex_xy: np.ndarray) -> None:
+        self.xy = vertex_xy
+        self._tree = None
+
+    def tree(self):
+        if self._tree is None:
+            from scipy.spatial import cKDTree
+
+            self._tree = cKDTree(self.xy)
+        return self._tree
+
+
+def _graded(xy, vertices: JunctionIndex, vertex_size, h_max, growth) -> np.ndarray:
+    k = min(NEAREST, len(vertex_size))
+    if len(vertex_size) > BRUTE_FORCE_VERTICES:
+        return _graded_by_tree(xy, vertices, vertex_size, h_max, growth, k)
+    out = np.empty(len(xy))
+    for start in range(0, len(xy), CHUNK):
+        chunk = xy[start:start + CHUNK]
+        h, ambiguous = _graded_brute_force(chunk, vertices.xy, vertex_size, growth, k)
+        if np.any(ambiguous):
+            h[ambiguous] = _graded_by_tree(chunk[ambiguous], vertices, vertex_size, np.inf,
+                                           growth, k)
+        out[start:start + len(chunk)] = np.minimum(h_max, h)
+    return out
+
+
+def _graded_by_tree(xy, vertices: JunctionIndex, vertex_size, h_max, growth, k) -> np.ndarray:
+    dist, idx = vertices.tree().query(xy, k=k)
     dist, idx = dist.reshape(len(xy), k), idx.reshape(len(xy), k)
     return np.minimum(h_max, np.min(vertex_size[idx] + growth * dist, axis=1))
+
+
+def _graded_brute_force(xy, vertex_xy, vertex_size, growth, k):
+    """min over the k nearest vertices of hᵥ + g·d for each xy, and where that is ambiguous.
+
+    The distances are bit for bit the k-d tree's (√(dx² + dy²)); the k nearest are those
+    closer than the k-th smallest distance plus some of the ones at it. When more are at it
+    than are needed and they differ in size, the choice matters: those rows are ambiguous.
+    """
+    dx = xy[:, None, 0] - vertex_xy[None, :, 0]
+    dy = xy[:, None, 1] - vertex_xy[None, :, 1]
+    dist = np.sqrt(dx * dx + dy * dy)
+    value = vertex_size[None, :] + growth * dist
+    if k == len(vertex_size):
+        return np.min(value, axis=1), np.zeros(len(xy), bool)
+    kth = np.partition(dist, k - 1, axis=1)[:, k - 1:k]
+    closer, tied = dist < kth, dist == kth
+    best_closer = np.where(closer, value, np.inf).min(axis=1)
+    best_tied = np.where(tied, value, np.inf).min(axis=1)
+    worst_tied = np.where(tied, value, -np.inf).max(axis=1)
+    all_tied_taken = tied.sum(axis=1) == k - closer.sum(axis=1)
+    ambiguous = ~all_tied_taken & (best_tied < best_closer) & (best_tied != worst_tied)
+    return np.minimum(best_closer, best_tied), ambiguous
 
 
 def junction_vertices(classified: Classified) -> np.ndarray:
@@ -120,21 +183,22 @@ def plan(classified: Classified, factor: float = 1.0) -> SegmentPlan:
     lfs_vertex = local_feature_size(part.points, seg_array, vertex_xy,
                                     np.column_stack([junctions, junctions]))
     vertex_size = np.minimum(h_junction, 0.5 * lfs_vertex) / factor ** VERTEX_POWER
-    tree = cKDTree(vertex_xy)
+    vertices = JunctionIndex(vertex_xy)
     growth = GROWTH / factor
-    inner = _discretise(part.points, seg_array, tree, vertex_size, h_max / factor, growth, factor)
+    inner = _discretise(part.points, seg_array, vertices, vertex_size, h_max / factor, growth,
+                        factor)
     result = SegmentPlan(inner, np.empty(0), h_max / factor, junctions)
-    result._tree, result._vertex_size, result._growth = tree, vertex_size, growth
+    result._vertices, result._vertex_size, result._growth = vertices, vertex_size, growth
     result.point_size = result.size_at(part.points)
     return result
 
 
-def _discretise(points, seg_array, tree, vertex_size, h_max, growth, factor) -> dict:
+def _discretise(points, seg_array, vertices, vertex_size, h_max, growth, factor) -> dict:
     t = np.linspace(0.0, 1.0, SAMPLES)
     a, b = points[seg_array[:, 0]], points[seg_array[:, 1]]
     xy = (a[:, None, :] + t[None, :, None] * (b - a)[:, None, :]).reshape(-1, 2)
     own = np.repeat(seg_array, SAMPLES, axis=0)
-    h = _graded(xy, tree, vertex_size, h_max, growth)
+    h = _graded(xy, vertices, vertex_size, h_max, growth)
     lfs = local_feature_size(points, seg_array, xy, own)
     h = np.minimum(h, THIN_ASPECT * lfs / factor).reshape(len(seg_array), SAMPLES)
     length = np.linalg.norm(b - a, axis=1)

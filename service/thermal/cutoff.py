@@ -126,9 +126,21 @@ def _deviation_from_1d(model, solution, chain, ends) -> float | None:
 
 
 def _nodes_at(dof_points, xy, extent) -> np.ndarray | None:
-    from scipy.spatial import cKDTree
+    """The dof at each of the few points xy, or None when one has no dof within 1e-6·extent.
 
-    dist, idx = cKDTree(dof_points).query(xy)
-    if np.any(dist > 1e-6 * extent):
-        return None
+    Brute force, one point at a time (cheaper than building a k-d tree over every dof, and no
+    scipy.spatial import); the distances are bit for bit those of scipy's cKDTree. Should two
+    dofs be equally near a point, the k-d tree's choice between them is taken.
+    """
+    idx = np.empty(len(xy), int)
+    for k, (x, y) in enumerate(np.asarray(xy, float)):
+        dx, dy = dof_points[:, 0] - x, dof_points[:, 1] - y
+        dist = np.sqrt(dx * dx + dy * dy)
+        idx[k] = np.argmin(dist)
+        if dist[idx[k]] > 1e-6 * extent:
+            return None
+        if np.count_nonzero(dist == dist[idx[k]]) > 1:
+            from scipy.spatial import cKDTree
+
+            idx[k] = cKDTree(dof_points).query([x, y])[1]
     return idx

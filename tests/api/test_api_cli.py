@@ -70,6 +70,20 @@ def test_evaluate_does_not_load_the_web_stack(tmp_path):
     assert done.stdout.strip() == "0 []", done.stderr
 
 
+def test_evaluate_of_a_small_section_skips_what_it_does_not_need():
+    # Cold-start cost (bench/notes.md, "CLI cold start (session 2)"): the settings, the
+    # worker's multiprocessing and scipy.spatial (a k-d tree; brute force for few vertices).
+    probe = ("import sys, io, contextlib; from coldseam.cli import main\n"
+             "with contextlib.redirect_stdout(io.StringIO()):\n"
+             f"    code = main(['evaluate', {str(WALL)!r}])\n"
+             "skipped = ('pydantic_settings', 'coldseam.settings', 'multiprocessing', "
+             "'scipy.spatial')\n"
+             "print(code, sorted(m for m in sys.modules if m in skipped))")
+    done = subprocess.run([sys.executable, "-c", probe], capture_output=True, text=True,
+                          timeout=120)
+    assert done.stdout.strip() == "0 []", done.stderr
+
+
 def test_serve_refuses_an_open_server_off_loopback():
     done = _run("serve", "--host", "0.0.0.0", "--port", "1")
     assert done.returncode == 2
