@@ -16,7 +16,6 @@ from collections.abc import Callable
 
 import numpy as np
 import scipy.sparse as sp
-import scipy.sparse.linalg as spla
 
 from coldseam.errors import SolveFailed
 
@@ -57,6 +56,8 @@ class CholeskySolver:
 
 class DirectSolver:
     def __init__(self, matrix: sp.csc_matrix) -> None:
+        import scipy.sparse.linalg as spla  # here: with CHOLMOD a cold start never needs it
+
         self.lu = spla.splu(matrix, permc_spec="MMD_AT_PLUS_A", diag_pivot_thresh=0.0,
                             options={"SymmetricMode": True})
 
