@@ -26,6 +26,7 @@ import time
 from collections.abc import Callable
 from typing import TYPE_CHECKING, Any
 
+from coldseam import DEFAULT_ENGINE
 from coldseam.errors import ColdseamError
 
 if TYPE_CHECKING:  # only an annotation here: `coldseam evaluate` need not load multiprocessing
@@ -50,6 +51,20 @@ def load_engine(spec: str) -> Engine:
     return getattr(module, function_name)
 
 
+def warm_up(engine: Engine) -> None:
+    """Evaluate a small junction once before taking requests: the first evaluation in a
+    process pays for lazy imports, gmsh's start and the solver's first call (~0.5 s), which
+    would otherwise land on one unlucky request; gmsh's first triangulation in a process can
+    also differ from later ones in the last digits, so every request now sees a warm mesher."""
+    from coldseam.schema.evaluation import EvaluationRequest
+    from coldseam.templates import build
+
+    try:
+        engine(EvaluationRequest.model_validate(build("wall_corner", {})), None)
+    except Exception:  # noqa: BLE001 - warming is an optimisation; requests report errors
+        log.warning("worker warm-up evaluation failed", exc_info=True)
+
+
 def worker_main(conn: Connection, engine_spec: str, memory_limit: int = 0) -> None:
     """Entry point of a worker process: evaluate requests until told to stop.
 
@@ -60,6 +75,8 @@ def worker_main(conn: Connection, engine_spec: str, memory_limit: int = 0) -> No
         cap = memory_limit + ADDRESS_HEADROOM
         resource.setrlimit(resource.RLIMIT_AS, (cap, cap))
     engine = load_engine(engine_spec)
+    if engine_spec == DEFAULT_ENGINE:
+        warm_up(engine)
     conn.send(("ready",))
     while True:
         message = conn.recv()
