@@ -31,7 +31,7 @@ class TwoLevelSolver:
         self.matrix = sp.csr_matrix(matrix)
         self.p = sp.csr_matrix(prolongation)
         self.pt = self.p.T.tocsr()
-        self.coarse = coarse_factorize((self.pt @ self.matrix @ self.p).tocsc())
+        self.coarse = coarse_factorize(self.pt @ self.matrix @ self.p)
         self.tolerance = tolerance
 
     def solve(self, rhs: np.ndarray) -> np.ndarray:

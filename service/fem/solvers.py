@@ -147,20 +147,35 @@ class NearbySolver:
         return x
 
 
-def factorize(matrix: sp.csc_matrix, prolongation: Callable[[], sp.spmatrix] | None = None):
-    """A solver for the SPD ``matrix``: direct below the limits, else iterative — the P2/P1
-    two-level method when ``prolongation`` (the P1-in-P2 embedding on the free dofs, built on
-    demand) is given, smoothed-aggregation AMG otherwise."""
+def symmetric_view(matrix: sp.spmatrix, layout: str) -> sp.spmatrix:
+    """A symmetric CSR or CSC matrix in the other layout without copying: the CSR arrays of A
+    are the CSC arrays of Aᵀ = A (``tocsc`` copied all of it: 0.5 s and 0.7 GB at 4M P2 dofs)."""
+    if matrix.format == layout:
+        return matrix
+    if matrix.format not in ("csr", "csc"):
+        return matrix.asformat(layout)
+    if not matrix.has_sorted_indices:  # products such as PᵀAP come unsorted
+        matrix = matrix.sorted_indices()
+    kind = sp.csc_matrix if layout == "csc" else sp.csr_matrix
+    return kind((matrix.data, matrix.indices, matrix.indptr), shape=matrix.shape)
+
+
+def factorize(matrix: sp.spmatrix, prolongation: Callable[[], sp.spmatrix] | None = None):
+    """A solver for the SPD ``matrix`` (CSR or CSC): direct below the limits, else iterative —
+    the P2/P1 two-level method when ``prolongation`` (the P1-in-P2 embedding on the free dofs,
+    built on demand) is given, smoothed-aggregation AMG otherwise."""
+    csc = symmetric_view(matrix, "csc")
     cholmod = _cholmod()
     if cholmod is not None and matrix.shape[0] <= max(DIRECT_LIMIT, CHOLESKY_LIMIT):
         try:
-            return CholeskySolver(matrix, cholmod)
+            return CholeskySolver(csc, cholmod)
         except cholmod.CholmodError as exc:  # not positive definite: let SuperLU judge
             log.warning("Cholesky factorisation failed (%s); using LU", exc)
     if matrix.shape[0] <= DIRECT_LIMIT:
-        return DirectSolver(matrix)
+        return DirectSolver(csc)
+    csr = symmetric_view(matrix, "csr")
     if prolongation is not None:
         from coldseam.fem.pmultigrid import TwoLevelSolver
 
-        return TwoLevelSolver(matrix, prolongation(), factorize, RELATIVE_TOLERANCE)
-    return MultigridSolver(matrix)
+        return TwoLevelSolver(csr, prolongation(), factorize, RELATIVE_TOLERANCE)
+    return MultigridSolver(csr)

@@ -8,7 +8,7 @@ known-temperature edges (surface resistance 0). One factorisation serves every r
 from __future__ import annotations
 
 import logging
-from dataclasses import dataclass, field
+from dataclasses import InitVar, dataclass, field
 
 import numpy as np
 import scipy.sparse as sp
@@ -35,37 +35,79 @@ def assemble(cell_dofs: np.ndarray, local: np.ndarray, size: int) -> sp.csr_matr
     return sp.coo_matrix((local.ravel(), (rows, cols)), shape=(size, size)).tocsr()
 
 
+def pattern_positions(indices: np.ndarray, indptr: np.ndarray, part: sp.csr_matrix) -> np.ndarray:
+    """Index into the values of a CSR matrix (``indices``, ``indptr``; sorted within rows) of
+    every stored entry of ``part``, whose pattern must lie inside it."""
+    rows = np.repeat(np.arange(part.shape[0]), np.diff(part.indptr))
+    touched = np.unique(rows)
+    starts, counts = indptr[touched], indptr[touched + 1] - indptr[touched]
+    first = np.repeat(np.cumsum(counts) - counts, counts)
+    slots = np.repeat(starts, counts) + (np.arange(counts.sum()) - first)
+    n = np.int64(part.shape[1])
+    keys = np.repeat(touched, counts).astype(np.int64) * n + indices[slots]
+    wanted = rows.astype(np.int64) * n + part.indices
+    where = np.minimum(np.searchsorted(keys, wanted), len(keys) - 1)
+    if len(wanted) and np.any(keys[where] != wanted):
+        raise ValueError("an entry lies outside the matrix pattern")
+    return slots[where]
+
+
+def _without_zeros(matrix: sp.csr_matrix, keep: np.ndarray):
+    """CSR arrays (data, indices, indptr) of ``matrix`` without its exact zeros except at the
+    value positions ``keep``, and the new positions of those. Exact zeros are common: 26 % of
+    the P2 entries on meshes of right-angled triangles (``stiffness + edge`` dropped them)."""
+    kept = matrix.data != 0
+    kept[keep] = True
+    before = np.zeros(len(kept) + 1, dtype=np.int32 if len(kept) < 2**31 else np.int64)
+    np.cumsum(kept, out=before[1:])
+    indptr = before[matrix.indptr].astype(matrix.indptr.dtype)
+    return matrix.data[kept], matrix.indices[kept], indptr, before[keep]
+
+
 @dataclass
 class ConductionProblem:
     """The discrete problem on one space with fixed conductivities and surface conductances.
 
     conductivity: (E, 2) [λx, λy] per triangle, W/(m·K).
     conductance: (B,) h = 1/Rs per boundary edge, W/(m²·K); ``np.inf`` for Rs = 0.
-    stiffness: the assembled conduction matrix of these conductivities on this space, when
-    already known (``with_conductance`` passes it on); assembled here otherwise.
+    like: a problem on the same space with the same conductivities whose conduction matrix
+    is reused (``with_conductance``); assembled here otherwise.
+
+    Only ``matrix`` (conduction plus boundary term) is kept: the conduction matrix alone is its
+    values with the boundary entries put back (``_stiffness_at_edges``), and the problems made
+    by ``with_conductance`` share its index arrays.
     """
 
     space: Space
     conductivity: np.ndarray
     conductance: np.ndarray
-    stiffness: sp.csr_matrix | None = None
+    like: InitVar[ConductionProblem | None] = None
     matrix: sp.csr_matrix = field(init=False)
     fixed: np.ndarray = field(init=False)
     _solver: object = field(init=False, default=None)
     _nearby: ConductionProblem | None = field(init=False, default=None)
 
-    def __post_init__(self) -> None:
+    def __post_init__(self, like: ConductionProblem | None) -> None:
         family = FAMILIES[self.space.order]
         n = self.space.dofs
-        if self.stiffness is None:
-            local = family.local_stiffness(self.space, self.conductivity)
-            self.stiffness = assemble(self.space.cell_dofs, local, n)
         self.lengths = edge_lengths(self.space.mesh.points, self.space.mesh.boundary_edges)
         robin = np.isfinite(self.conductance)
         self.h = np.where(robin, self.conductance, 0.0)
         weight = self.h * self.lengths
-        edge_mass = weight[:, None, None] * family.EDGE_MASS[None]
-        self.matrix = self.stiffness + assemble(self.space.edge_dofs, edge_mass, n)
+        edge = assemble(self.space.edge_dofs, weight[:, None, None] * family.EDGE_MASS[None], n)
+        if like is None:
+            stiffness = assemble(self.space.cell_dofs,
+                                 family.local_stiffness(self.space, self.conductivity), n)
+            positions = pattern_positions(stiffness.indices, stiffness.indptr, edge)
+            data, indices, indptr, positions = _without_zeros(stiffness, positions)
+        else:  # the conduction matrix of ``like``: its values with the boundary entries reset
+            data, indices, indptr = like.matrix.data.copy(), like.matrix.indices, like.matrix.indptr
+            positions = pattern_positions(indices, indptr, edge)
+            data[like._edge_positions] = like._stiffness_at_edges
+        self._edge_positions, self._stiffness_at_edges = positions, data[positions]
+        data[positions] += edge.data  # the same single addition per entry as stiffness + edge
+        self.matrix = sp.csr_matrix((data, indices, indptr), shape=(n, n))
+        self.matrix.has_canonical_format = True
         self.robin = robin
         self.fixed_owner = self._fixed_owner()
         self.fixed = np.flatnonzero(self.fixed_owner >= 0)
@@ -76,7 +118,7 @@ class ConductionProblem:
         """The same space and conductivities with other surface conductances (the conduction
         matrix is shared, not assembled again). When the known-temperature dofs are the same,
         its solves are preconditioned by this problem's factorisation (see NearbySolver)."""
-        other = ConductionProblem(self.space, self.conductivity, conductance, self.stiffness)
+        other = ConductionProblem(self.space, self.conductivity, conductance, like=self)
         if np.array_equal(other.free, self.free):
             other._nearby = self
         return other
@@ -97,10 +139,10 @@ class ConductionProblem:
             prolongation = self._prolongation if self.space.order == 2 else None
             near = self._nearby
             if near is not None and near._solver is not None and is_direct(near._solver):
-                self._solver = NearbySolver(a_ff.tocsr(), near._solver,
-                                            lambda: factorize(a_ff.tocsc(), prolongation))
+                self._solver = NearbySolver(a_ff, near._solver,
+                                            lambda: factorize(a_ff, prolongation))
             else:
-                self._solver = factorize(a_ff.tocsc(), prolongation)
+                self._solver = factorize(a_ff, prolongation)
         return self._solver
 
     def _prolongation(self) -> sp.csr_matrix:
