@@ -90,3 +90,24 @@ def test_a_client_hanging_up_does_not_cancel_the_evaluation(client):
     stored = client.get(f"/api/v1/evaluations/{submitted.id}").json()
     assert stored["status"] == "done"
     assert client.post("/api/v1/evaluations", json=fake()).status_code == 200
+
+
+def test_warm_up_evaluates_a_valid_junction_and_never_raises():
+    """Workers of the default engine evaluate a small junction before they report ready; the
+    request must be one the engine accepts, and a failing warm-up must not stop the worker."""
+    from coldseam.api.worker import warm_up
+    from coldseam.schema.evaluation import EvaluationRequest
+
+    seen = []
+
+    def recording(request, progress):
+        assert isinstance(request, EvaluationRequest)
+        seen.append(request.section.name)
+
+    warm_up(recording)
+    assert len(seen) == 1
+
+    def failing(request, progress):
+        raise RuntimeError("broken engine")
+
+    warm_up(failing)  # logged, not raised
