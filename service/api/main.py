@@ -14,6 +14,7 @@ from fastapi.middleware.gzip import GZipMiddleware
 from coldseam import ENGINE_VERSION, __version__
 from coldseam.api import (
     catalogue,
+    docs,
     errors,
     evaluations,
     fallback,
@@ -64,7 +65,7 @@ async def lifespan(app: FastAPI) -> AsyncIterator[None]:
 def create_app(settings: Settings | None = None) -> FastAPI:
     """The application; with ``settings`` given, they replace ``get_settings()`` for it."""
     app = FastAPI(title="Coldseam", version=__version__, description=DESCRIPTION,
-                  lifespan=lifespan)
+                  lifespan=lifespan, docs_url=None, redoc_url=None)
     if settings is not None:
         app.dependency_overrides[get_settings] = lambda: settings
     else:
@@ -77,6 +78,7 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     app.add_api_route("/healthz", health, methods=["GET"], tags=["service"])
     errors.install(app)
     openapi.install(app)
+    docs.install(app)
     _add_middleware(app, settings)
     frontend.mount(app, settings.frontend_dir)
     return app

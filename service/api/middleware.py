@@ -27,7 +27,8 @@ COMMON_HEADERS = [
     (b"cross-origin-opener-policy", b"same-origin"),
     (b"cross-origin-resource-policy", b"same-origin"),
 ]
-DOC_PATHS = ("/docs", "/redoc", "/openapi.json")
+#: Answered without a policy of ours (a JSON document that clients and tools read).
+NO_POLICY = ("/openapi.json",)
 _GOOD_ID = re.compile(r"^[A-Za-z0-9._-]{1,64}$")
 
 Scope = dict[str, Any]
@@ -110,7 +111,8 @@ def _with_headers(headers: list, scope: Scope, request_id: str) -> list:
     names = {name.lower() for name, _ in headers}
     extra = [(b"x-request-id", request_id.encode())]
     extra += [h for h in COMMON_HEADERS if h[0] not in names]
-    if b"content-security-policy" not in names and not path.startswith(DOC_PATHS):
+    if b"content-security-policy" not in names and path not in NO_POLICY:
+        # The page and the API reference at /docs: everything from this server.
         policy = API_POLICY if path.startswith("/api/") else PAGE_POLICY
         extra.append((b"content-security-policy", policy.encode()))
         extra.append((b"x-frame-options", b"SAMEORIGIN" if path.startswith("/api/")
