@@ -1,12 +1,16 @@
 // The Coldseam HTTP API (model-v1 contract). Every non-2xx answer becomes an ApiError carrying
 // the normalised problems [{field, message}] so views can put each one beside its input.
 
+import { accessProblems, withKey } from "./lib/access.js";
 import { problems } from "./lib/errors.js";
 
 export const BASE = "api/v1";
 const KEY_STORE = "coldseam.api-key";
 
-/** The bearer key of a server that needs one (kept for this browser tab only). */
+/** Dispatched on window when the server answers 401: the key form opens itself. */
+export const KEY_NEEDED = "coldseam:key-needed";
+
+/** The access key of a server that needs one (kept for this browser tab only, never in the URL). */
 export function apiKey() {
   return sessionStorage.getItem(KEY_STORE) || "";
 }
@@ -16,9 +20,17 @@ export function setApiKey(key) {
   else sessionStorage.removeItem(KEY_STORE);
 }
 
+/** Every request of the page goes through here: its headers carry the key when one is set. */
 function headers(extra = {}) {
-  const key = apiKey();
-  return key ? { ...extra, Authorization: `Bearer ${key}` } : extra;
+  return withKey(apiKey(), extra);
+}
+
+/** The ApiError of a failed answer; a 401 also asks the key form to open. */
+async function failure(response) {
+  const sent = Boolean(apiKey());
+  const list = accessProblems(response.status, problems(await readBody(response), response.status), sent);
+  if (response.status === 401) window.dispatchEvent(new CustomEvent(KEY_NEEDED, { detail: { sent } }));
+  return new ApiError(response.status, list);
 }
 
 export class ApiError extends Error {
@@ -53,9 +65,8 @@ export async function call(path, { method = "GET", json, form, signal } = {}) {
     if (err.name === "AbortError") throw err;
     throw new ApiError(0, [{ field: "", message: "The Coldseam service cannot be reached." }]);
   }
-  const data = await readBody(response);
-  if (!response.ok) throw new ApiError(response.status, problems(data, response.status));
-  return { status: response.status, data };
+  if (!response.ok) throw await failure(response);
+  return { status: response.status, data: await readBody(response) };
 }
 
 export const listTemplates = () => call("templates").then((r) => asList(r.data, "templates"));
@@ -99,7 +110,7 @@ export function importDxf(file, layerMap, unit) {
 /** A resource of the API as a blob URL (for links when the server needs a key). */
 export async function blobUrl(url) {
   const response = await fetch(url, { headers: headers() });
-  if (!response.ok) throw new ApiError(response.status, problems(await readBody(response), response.status));
+  if (!response.ok) throw await failure(response);
   return URL.createObjectURL(await response.blob());
 }
 

@@ -7,6 +7,8 @@ import urllib.request
 from pathlib import Path
 
 ARTIFACTS = Path(__file__).parent / "artifacts"
+#: The access key of the keyed server (invented for the tests).
+TEST_KEY = "harrowgate-site-office-7f3a"
 
 
 def shot(page, name: str) -> Path:

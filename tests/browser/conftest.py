@@ -11,9 +11,11 @@ import time
 import urllib.error
 import urllib.request
 from collections.abc import Iterator
+from contextlib import contextmanager
 from pathlib import Path
 
 import pytest
+from browser_support import TEST_KEY
 
 CHROMIUM = "/usr/bin/chromium"
 CHROMIUM_ARGS = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-quic",
@@ -43,13 +45,12 @@ def _wait_healthy(url: str, process: subprocess.Popen, log: Path) -> None:
     pytest.fail(f"coldseam serve did not answer /healthz in {START_TIMEOUT} s:\n{log.read_text()}")
 
 
-@pytest.fixture(scope="session")
-def server(tmp_path_factory: pytest.TempPathFactory) -> Iterator[str]:
-    """Base URL of a live service with an empty store."""
-    data = tmp_path_factory.mktemp("coldseam-data")
+@contextmanager
+def _serve(data: Path, env_extra: dict[str, str]) -> Iterator[str]:
+    """``coldseam serve`` on a free loopback port with data in ``data``; yields its base URL."""
     port = _free_port()
     log = data / "serve.log"
-    env = {k: v for k, v in os.environ.items() if not k.startswith("COLDSEAM_")}
+    env = {k: v for k, v in os.environ.items() if not k.startswith("COLDSEAM_")} | env_extra
     command = [sys.executable, "-m", "coldseam.cli", "serve", "--host", "127.0.0.1",
                "--port", str(port), "--data-dir", str(data), "--workers", "1"]
     with log.open("w") as out:
@@ -65,6 +66,21 @@ def server(tmp_path_factory: pytest.TempPathFactory) -> Iterator[str]:
         except subprocess.TimeoutExpired:
             process.kill()
             process.wait()
+
+
+@pytest.fixture(scope="session")
+def server(tmp_path_factory: pytest.TempPathFactory) -> Iterator[str]:
+    """Base URL of a live service with an empty store."""
+    with _serve(tmp_path_factory.mktemp("coldseam-data"), {}) as url:
+        yield url
+
+
+@pytest.fixture(scope="session")
+def keyed_server(tmp_path_factory: pytest.TempPathFactory) -> Iterator[str]:
+    """Base URL of a live service that needs the access key ``TEST_KEY``."""
+    with _serve(tmp_path_factory.mktemp("coldseam-keyed"),
+                {"COLDSEAM_API_KEYS": TEST_KEY}) as url:
+        yield url
 
 
 @pytest.fixture(scope="session")
