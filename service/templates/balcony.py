@@ -18,6 +18,7 @@ from coldseam.templates.base import (
     TemplateInfo,
     boundary,
     choice,
+    dimensions,
     invalid,
     length,
     rect,
@@ -39,8 +40,7 @@ INFO = TemplateInfo(
         Parameter("break_conductivity", "W/(m·K)", 0.20, "Equivalent conductivity of the "
                   "break element across its thickness (insulation, bars and bearings together)",
                   "number", 0.03, 5.0),
-        choice("dimensions", ("internal", "external"),
-               "Dimension system of the wall lengths (ISO 13789)"),
+        dimensions("wall"),
     ),
 )
 

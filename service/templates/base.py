@@ -91,6 +91,30 @@ def choice(name: str, options: tuple[str, ...], description: str) -> Parameter:
     return Parameter(name, "", options[0], description, "choice", options=options)
 
 
+# Declarations several templates share (names, defaults and wording are part of the API).
+
+def wall_structure(low: float = 100, high: float = 400,
+                   what: str = "wall structure") -> tuple[Parameter, Parameter]:
+    """``wall_thickness`` (mm, 200 by default) and ``wall_material`` (brick) of a wall."""
+    return (length("wall_thickness", 200, low, high, f"Thickness of the {what}"),
+            material("wall_material", "brick_protected", what.capitalize()))
+
+
+def wall_insulation(prefix: str = "", label: str = "External insulation", low: float = 20,
+                    high: float = 400) -> tuple[Parameter, Parameter]:
+    """``<prefix>insulation_thickness`` (mm, 160 by default) and ``<prefix>insulation_material``
+    (EPS, λ 0.035 W/(m·K)) of a wall's insulation layer."""
+    return (length(f"{prefix}insulation_thickness", 160, low, high,
+                   f"Thickness of the {label.lower()}"),
+            material(f"{prefix}insulation_material", "eps_035", label))
+
+
+def dimensions(lengths: str = "wall") -> Parameter:
+    """The ISO 13789 dimension system (internal or external) of the flanking lengths."""
+    return choice("dimensions", ("internal", "external"),
+                  f"Dimension system of the {lengths} lengths (ISO 13789)")
+
+
 @dataclass(frozen=True)
 class MaterialChoice:
     """A material parameter's value: a library row, or a conductivity given directly."""

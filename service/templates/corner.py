@@ -17,11 +17,12 @@ from coldseam.templates.base import (
     boundary,
     choice,
     cutoff_distance,
+    dimensions,
     flanking,
-    length,
-    material,
     region,
     request,
+    wall_insulation,
+    wall_structure,
 )
 
 INFO = TemplateInfo(
@@ -30,14 +31,11 @@ INFO = TemplateInfo(
     description="Plan section of an external corner where two equal walls meet at 90°, "
     "with the insulation on the outside or the inside of the structure.",
     parameters=(
-        length("wall_thickness", 200, 80, 500, "Thickness of the wall structure"),
-        material("wall_material", "brick_protected", "Wall structure"),
-        length("insulation_thickness", 160, 10, 400, "Thickness of the insulation layer"),
-        material("insulation_material", "eps_035", "Insulation layer"),
+        *wall_structure(low=80, high=500),
+        *wall_insulation(label="Insulation layer", low=10),
         choice("insulation_position", ("outside", "inside"),
                "Insulation on the outside or the inside of the structure"),
-        choice("dimensions", ("internal", "external"),
-               "Dimension system of the wall lengths (ISO 13789)"),
+        dimensions("wall"),
     ),
 )
 

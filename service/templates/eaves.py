@@ -21,13 +21,15 @@ from coldseam.templates.base import (
     Parameter,
     TemplateInfo,
     boundary,
-    choice,
     cutoff_distance,
+    dimensions,
     flanking,
     length,
     material,
     region,
     request,
+    wall_insulation,
+    wall_structure,
 )
 
 INFO = TemplateInfo(
@@ -36,17 +38,14 @@ INFO = TemplateInfo(
     description="Vertical section where a flat or pitched roof meets an externally insulated "
     "wall, the wall insulation running up to the roof insulation.",
     parameters=(
-        length("wall_thickness", 200, 100, 400, "Thickness of the wall structure"),
-        material("wall_material", "brick_protected", "Wall structure"),
-        length("wall_insulation_thickness", 160, 20, 400, "Thickness of the wall insulation"),
-        material("wall_insulation_material", "eps_035", "Wall insulation"),
+        *wall_structure(),
+        *wall_insulation("wall_", "Wall insulation"),
         Parameter("roof_pitch", "°", 0, "Roof pitch (0: flat)", "number", 0, 55),
         length("roof_structure_thickness", 200, 20, 400, "Thickness of the roof structure"),
         material("roof_structure_material", "reinforced_concrete_1pct", "Roof structure"),
         length("roof_insulation_thickness", 200, 20, 500, "Thickness of the roof insulation"),
         material("roof_insulation_material", "pir_022", "Roof insulation"),
-        choice("dimensions", ("internal", "external"),
-               "Dimension system of the wall and roof lengths (ISO 13789)"),
+        dimensions("wall and roof"),
     ),
 )
 

@@ -16,21 +16,21 @@ from coldseam.templates.base import (
     RSI_UPWARD,
     TemplateInfo,
     boundary,
-    choice,
     cutoff_distance,
+    dimensions,
     flanking,
     length,
     material,
     rect,
     region,
     request,
+    wall_insulation,
+    wall_structure,
 )
 
 WALL_PARAMETERS = (
-    length("wall_thickness", 200, 100, 400, "Thickness of the wall structure"),
-    material("wall_material", "brick_protected", "Wall structure"),
-    length("insulation_thickness", 160, 20, 400, "Thickness of the external insulation"),
-    material("insulation_material", "eps_035", "External insulation"),
+    *wall_structure(),
+    *wall_insulation(),
     length("slab_thickness", 200, 120, 400, "Thickness of the floor slab"),
     material("slab_material", "reinforced_concrete_1pct", "Floor slab"),
 )
@@ -40,10 +40,7 @@ INFO = TemplateInfo(
     title="Intermediate floor slab, externally insulated wall",
     description="Vertical section of a floor slab bearing on an external wall whose "
     "insulation runs continuously past the slab edge.",
-    parameters=WALL_PARAMETERS + (
-        choice("dimensions", ("internal", "external"),
-               "Dimension system of the wall lengths (ISO 13789)"),
-    ),
+    parameters=(*WALL_PARAMETERS, dimensions("wall")),
 )
 
 

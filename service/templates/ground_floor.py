@@ -20,8 +20,8 @@ from coldseam.templates.base import (
     RSI_HORIZONTAL,
     TemplateInfo,
     boundary,
-    choice,
     cutoff_distance,
+    dimensions,
     flanking,
     invalid,
     length,
@@ -30,6 +30,8 @@ from coldseam.templates.base import (
     rect,
     region,
     request,
+    wall_insulation,
+    wall_structure,
 )
 
 INFO = TemplateInfo(
@@ -38,10 +40,8 @@ INFO = TemplateInfo(
     description="Vertical section of a slab on ground meeting an externally insulated wall "
     "and its foundation, with insulation under the slab and/or perimeter insulation.",
     parameters=(
-        length("wall_thickness", 200, 100, 400, "Thickness of the wall and foundation structure"),
-        material("wall_material", "brick_protected", "Wall and foundation structure"),
-        length("wall_insulation_thickness", 160, 20, 300, "Thickness of the wall insulation"),
-        material("wall_insulation_material", "eps_035", "Wall insulation"),
+        *wall_structure(what="wall and foundation structure"),
+        *wall_insulation("wall_", "Wall insulation", high=300),
         length("slab_thickness", 150, 80, 300, "Thickness of the floor slab"),
         material("slab_material", "reinforced_concrete_1pct", "Floor slab"),
         optional_length("floor_insulation_thickness", 100, 10, 300, "Insulation under the slab"),
@@ -56,8 +56,7 @@ INFO = TemplateInfo(
         length("floor_width", 8000, 2000, 20000, "Width b of the floor (between the inner faces "
                "of the external walls)"),
         material("ground_material", "ground_iso10211", "Ground"),
-        choice("dimensions", ("internal", "external"),
-               "Dimension system of the wall and floor lengths (ISO 13789)"),
+        dimensions("wall and floor"),
     ),
 )
 

@@ -33,6 +33,8 @@ from coldseam.templates.base import (
     rect,
     region,
     request,
+    wall_insulation,
+    wall_structure,
 )
 
 INFO = TemplateInfo(
@@ -41,10 +43,8 @@ INFO = TemplateInfo(
     description="Plan section through a window jamb in an externally insulated wall; the "
     "frame is a block of equivalent conductivity, the reveal optionally insulated.",
     parameters=(
-        length("wall_thickness", 200, 100, 400, "Thickness of the wall structure"),
-        material("wall_material", "brick_protected", "Wall structure"),
-        length("insulation_thickness", 160, 20, 300, "Thickness of the external insulation"),
-        material("insulation_material", "eps_035", "External insulation"),
+        *wall_structure(),
+        *wall_insulation(high=300),
         length("frame_depth", 80, 50, 150, "Depth of the frame through the wall"),
         length("frame_width", 100, 50, 200, "Visible width of the frame"),
         Parameter("frame_conductivity", "W/(m·K)", 0.13, "Equivalent conductivity of the "
