@@ -14,15 +14,15 @@ def _f(value, digits=3, unit="") -> str:
 def _sections(rows: list[dict]) -> list[str]:
     out = ["## 1. Coldseam end to end (warm process, median wall time of the runs)", "",
            "| section | levels (nodes) | dofs | target met | wall s | CPU s | geometry | meshing"
-           " | assembly | solve | post | err Φ W/m | err θsi K | err probes K | ref nodes |",
-           "|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|"]
+           " | adapt | assembly | solve | post | err Φ W/m | err θsi K | err probes K | ref nodes |",
+           "|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|"]
     for r in rows:
         c, s, e = r["coldseam"], r["coldseam"]["stages"], r["coldseam"]["errors"]
         out.append(
             f"| {r['name']} | {'/'.join(map(str, c['levels']))} | {c['figures']['dofs']} | "
             f"{'yes' if c['target_met'] else 'no'} | {c['wall_median']:.3f} | "
-            f"{c['cpu_median']:.3f} | " + " | ".join(f"{s[k]:.3f}" for k in (
-                "geometry", "meshing", "assembly", "solve", "post-processing")) +
+            f"{c['cpu_median']:.3f} | " + " | ".join(f"{s.get(k, 0.0):.3f}" for k in (
+                "geometry", "meshing", "adapt", "assembly", "solve", "post-processing")) +
             f" | {_f(e['heat_flow'], 2)} | {_f(e['theta_si_min'], 2)} | {_f(e['probes'], 2)} | "
             f"{r['reference']['nodes']} |")
     out += ["", "## 2. Peer pipeline at equal accuracy (gmsh OCC + fragment, uniform size, "

@@ -3,6 +3,7 @@
 Each wrapped call charges its own time minus the time of wrapped calls inside it to its stage;
 everything not inside a wrapped call is "post-processing". Stages:
 geometry (model preparation, flanking cuts), meshing (size plan, gmsh, uniform splits),
+adapt (error indicators with their adjoint solves, and the bisection of the next level),
 assembly (dof spaces, element matrices, boundary terms), solve (factorisation or AMG set-up,
 substitutions, per-run heat flows), post-processing (figures, result blocks, field document).
 """
@@ -14,7 +15,7 @@ import importlib
 import time
 from contextlib import contextmanager
 
-STAGES = ("geometry", "meshing", "assembly", "solve", "post-processing")
+STAGES = ("geometry", "meshing", "adapt", "assembly", "solve", "post-processing")
 
 #: (module, attribute, stage); a class attribute is "Class.method". Missing ones are skipped.
 TARGETS = [
@@ -23,6 +24,8 @@ TARGETS = [
     ("coldseam.thermal.levels", "plan", "meshing"),
     ("coldseam.thermal.levels", "triangulate", "meshing"),
     ("coldseam.thermal.levels", "refine_uniform", "meshing"),
+    ("coldseam.thermal.evaluate", "error_indicators", "adapt"),
+    ("coldseam.thermal.evaluate", "next_level", "adapt"),
     ("coldseam.thermal.solve", "make_space", "assembly"),
     ("coldseam.fem.system", "ConductionProblem.__post_init__", "assembly"),
     ("coldseam.fem.system", "Stiffness.__init__", "assembly"),
