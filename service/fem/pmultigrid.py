@@ -11,6 +11,7 @@ solver stalled at 3e-4 after 400. The residual is checked after every solve.
 
 from __future__ import annotations
 
+import copy
 import logging
 from collections.abc import Callable
 
@@ -33,6 +34,15 @@ class TwoLevelSolver:
         self.pt = self.p.T.tocsr()
         self.coarse = coarse_factorize(self.pt @ self.matrix @ self.p)
         self.tolerance = tolerance
+
+    def nearby(self, matrix: sp.spmatrix) -> TwoLevelSolver:
+        """The same method for a matrix that differs from this one by a boundary term (other
+        surface resistances): smoothing on ``matrix``, this solver's prolongation and coarse
+        factorisation (PᵀAP of the nearby matrix: still a symmetric positive definite cycle,
+        so CG stays exact; only the iteration count can change)."""
+        other = copy.copy(self)
+        other.matrix = sp.csr_matrix(matrix)
+        return other
 
     def solve(self, rhs: np.ndarray) -> np.ndarray:
         if rhs.ndim == 2:

@@ -15,6 +15,7 @@ import scipy.sparse as sp
 
 from coldseam.fem import p1, p2
 from coldseam.fem.mesh import Mesh
+from coldseam.fem.pmultigrid import TwoLevelSolver
 from coldseam.fem.solvers import NearbySolver, factorize, is_direct
 from coldseam.fem.space import Space, edge_lengths
 
@@ -117,7 +118,8 @@ class ConductionProblem:
     def with_conductance(self, conductance: np.ndarray) -> ConductionProblem:
         """The same space and conductivities with other surface conductances (the conduction
         matrix is shared, not assembled again). When the known-temperature dofs are the same,
-        its solves are preconditioned by this problem's factorisation (see NearbySolver)."""
+        its solves are preconditioned by this problem's factorisation (see NearbySolver), or
+        reuse its two-level solver's coarse factorisation (TwoLevelSolver.nearby)."""
         other = ConductionProblem(self.space, self.conductivity, conductance, like=self)
         if np.array_equal(other.free, self.free):
             other._nearby = self
@@ -141,6 +143,8 @@ class ConductionProblem:
             if near is not None and near._solver is not None and is_direct(near._solver):
                 self._solver = NearbySolver(a_ff, near._solver,
                                             lambda: factorize(a_ff, prolongation))
+            elif near is not None and isinstance(near._solver, TwoLevelSolver):
+                self._solver = near._solver.nearby(a_ff)
             else:
                 self._solver = factorize(a_ff, prolongation)
         return self._solver

@@ -95,3 +95,22 @@ def test_other_surface_resistances_are_solved_through_the_nearby_factorisation()
 
     fresh = ConductionProblem(design.space, design.conductivity, conductance)
     assert np.abs(theta - fresh.solve(ambient)).max() < 1e-9
+
+
+def test_other_surface_resistances_reuse_the_two_level_coarse_factorisation(monkeypatch):
+    monkeypatch.setattr(solvers, "DIRECT_LIMIT", 100)
+    monkeypatch.setattr(solvers, "CHOLESKY_LIMIT", 100)
+    design = layered_problem(4)
+    ambient = (design.space.mesh.boundary_group == 0).astype(float)
+    design.solve(ambient)
+    conductance = np.where(design.space.mesh.boundary_group == 0, 4.0, np.inf)
+    condensation = design.with_conductance(conductance)
+    theta = condensation.solve(ambient)
+    assert condensation.solver.coarse is design.solver.coarse
+    assert condensation.solver.matrix is not design.solver.matrix
+    monkeypatch.setattr(solvers, "DIRECT_LIMIT", 300_000)
+    monkeypatch.setattr(solvers, "CHOLESKY_LIMIT", 1_500_000)
+    from coldseam.fem.system import ConductionProblem
+
+    fresh = ConductionProblem(design.space, design.conductivity, conductance)
+    assert np.abs(theta - fresh.solve(ambient)).max() < 1e-7
