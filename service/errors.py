@@ -11,6 +11,10 @@ class ColdseamError(Exception):
         self.message = message
         self.field = field
 
+    def __reduce__(self):
+        # Keep the field when the error crosses a process boundary (DXF reader, workers).
+        return (type(self), (self.message, self.field))
+
     def as_detail(self) -> dict[str, str]:
         return {"field": self.field, "message": self.message}
 

@@ -75,3 +75,22 @@ def real_with_exit_hook(request, progress=None):
             os._exit(9)
 
     return real_evaluate(request, hook)
+
+
+def drawing_needing_a_terabyte(data, mapping, unit):
+    """A stand-in DXF reader that runs out of memory."""
+    return {"size": len(bytearray(2**40))}
+
+
+def drawing_never_finishing(data, mapping, unit):
+    time.sleep(600)
+
+
+def drawing_refused(data, mapping, unit):
+    from coldseam.errors import InvalidSection
+
+    raise InvalidSection("layer 'WALL' has an open polyline", "/layer_map/WALL")
+
+
+def drawing_read(data, mapping, unit):
+    return {"bytes": len(data), "pid": os.getpid()}
