@@ -2,8 +2,9 @@
 
 The 1D discretisation comes from sizes.plan (every geometry line is one mesh edge); gmsh fills
 each face with its Delaunay algorithm, sizes extended from the boundary, no smoothing. gmsh
-holds global state and is not thread-safe: every call runs under one lock and starts from an
-empty model, so nothing leaks between calls. Output is deterministic for a given input.
+holds global state and is not thread-safe: every call runs under one lock and starts gmsh
+afresh, so nothing leaks between calls and the output depends on the input alone (not on what
+the process meshed before).
 """
 
 from __future__ import annotations
@@ -20,18 +21,18 @@ from coldseam.meshing.sizes import SegmentPlan
 
 log = logging.getLogger(__name__)
 _LOCK = threading.Lock()
-_STARTED = False
 
 
 def _gmsh():
-    global _STARTED
+    """gmsh freshly started (0.1 ms): ``clear()`` alone keeps global state such as the last
+    model's bounding box, which gmsh uses as a length scale, so a mesh came out differently
+    depending on what the process had meshed before."""
     import gmsh
 
-    if not _STARTED:
-        gmsh.initialize(readConfigFiles=False, interruptible=False)
-        _STARTED = True
+    if gmsh.isInitialized():
+        gmsh.finalize()
+    gmsh.initialize(readConfigFiles=False, interruptible=False)
     gmsh.option.setNumber("General.Terminal", 0)
-    gmsh.clear()
     for name, value in {"General.NumThreads": 1,
                         "Mesh.Algorithm": 5, "Mesh.Smoothing": 0,
                         "Mesh.MeshSizeExtendFromBoundary": 1, "Mesh.MeshSizeFromPoints": 1,
