@@ -54,8 +54,7 @@ def load_engine(spec: str) -> Engine:
 def warm_up(engine: Engine) -> None:
     """Evaluate a small junction once before taking requests: the first evaluation in a
     process pays for lazy imports, gmsh's start and the solver's first call (~0.5 s), which
-    would otherwise land on one unlucky request; gmsh's first triangulation in a process can
-    also differ from later ones in the last digits, so every request now sees a warm mesher."""
+    would otherwise land on one unlucky request."""
     from coldseam.schema.evaluation import EvaluationRequest
     from coldseam.templates import build
 
