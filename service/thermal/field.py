@@ -1,8 +1,8 @@
 """The temperature field of the final level as compact arrays, for drawing.
 
-{"unit": "m", "points": [[x, y]], "triangles": [[a, b, c]] (linear sub-triangles),
- "temperature": [θ] per point (design run), "heat_flux": [|q| W/m²] per triangle,
- "material": [k] per triangle, "materials": [{"id", "conductivity"}],
+{"unit": "m", "points": [[x, y]], "triangles": [[a, b, c]] (linear sub-triangles; for P2
+ above DRAWN_TRIANGLES the vertex triangles), "temperature": [θ] per point (design run),
+ "heat_flux": [|q| W/m²] per triangle, "material": [k] per triangle, "materials": [{"id", "conductivity"}],
  "pieces": [{"material", "polygon", "holes"}], "boundaries": [{"environment", "side",
  "surface_resistance", "segments"}], "adiabatic": [segments],
  "min_surface": {env: {"temperature", "at"}}, "condensation_min": {...} | null}
@@ -23,20 +23,27 @@ from coldseam.thermal.solve import LevelSolution
 
 #: P2 triangle (vertices 0,1,2; sides 3=01, 4=12, 5=20) drawn as four linear triangles.
 P2_SPLIT = np.array([[0, 3, 5], [3, 1, 4], [5, 4, 2], [3, 4, 5]])
+#: Above this many drawn triangles a P2 field is drawn on its vertex triangles (exact vertex
+#: temperatures, linear between them) instead of four sub-triangles each: as many triangles
+#: as a P1 field at the service's node limit. At 1.03M nodes the split gave 8.3M triangles and
+#: 4.1M points as Python lists (~2.3 GB, 6 s of ``tolist``).
+DRAWN_TRIANGLES = 2_500_000
 
 
 def field_document(model: ThermalModel, solution: LevelSolution) -> dict:
     space, run = solution.space, solution.design
     theta = run.theta
     flux = np.linalg.norm(element_heat_flux(space, run.problem.conductivity, theta), axis=1)
-    if space.order == 2:
+    points = space.dof_points
+    if space.order == 2 and len(P2_SPLIT) * space.mesh.elements <= DRAWN_TRIANGLES:
         triangles = space.cell_dofs[:, P2_SPLIT].reshape(-1, 3)
         repeat = len(P2_SPLIT)
     else:
-        triangles, repeat = space.cell_dofs, 1
+        triangles, repeat = space.cell_dofs[:, :3], 1  # vertices are the first dofs
+        points, theta = points[:space.mesh.nodes], theta[:space.mesh.nodes]
     part = model.classified.partition
     with _no_cycle_collection():
-        points, cells = np.round(space.dof_points, 7).tolist(), triangles.tolist()
+        points, cells = np.round(points, 7).tolist(), triangles.tolist()
     return {
         "unit": "m",
         "points": points,
