@@ -60,26 +60,26 @@ class TwoLevelSolver:
 
     def _solve(self, rhs: np.ndarray) -> np.ndarray:
         rhs = np.ascontiguousarray(rhs, dtype=float)
-        norm = np.linalg.norm(rhs)
+        norm = _norm(rhs)
         x = np.zeros_like(rhs)
         if norm == 0:
             return x
         r = rhs.copy()
         z = self._cycle(r)
-        d, rz = z.copy(), r @ z
+        d, rz = z.copy(), _dot(r, z)
         iterations = 0
         while iterations < MAX_ITERATIONS:
             iterations += 1
             q = self.matrix @ d
-            alpha = rz / (d @ q)
+            alpha = rz / _dot(d, q)
             x += alpha * d
             r -= alpha * q
-            if np.linalg.norm(r) < self.tolerance * norm:
+            if _norm(r) < self.tolerance * norm:
                 break
             z = self._cycle(r)
-            rz, previous = r @ z, rz
+            rz, previous = _dot(r, z), rz
             d = z + (rz / previous) * d
-        relative = np.linalg.norm(rhs - self.matrix @ x) / norm
+        relative = _norm(rhs - self.matrix @ x) / norm
         if not relative < 1e-8:
             raise SolveFailed(
                 f"the iterative solver stopped at relative residual {relative:.1e} after "
@@ -87,3 +87,13 @@ class TwoLevelSolver:
         log.debug("P2/P1 two-level CG: %d iterations, relative residual %.1e", iterations,
                   relative)
         return x
+
+
+def _dot(a: np.ndarray, b: np.ndarray) -> float:
+    """a·b without BLAS: numpy's OpenBLAS ddot wakes threads that then spin on the other core
+    between calls (measured on P2 at 4.1M dofs: 88.6 s CPU for 73.5 s wall)."""
+    return float(np.einsum("i,i->", a, b))
+
+
+def _norm(a: np.ndarray) -> float:
+    return float(np.sqrt(_dot(a, a)))
