@@ -94,6 +94,7 @@ def measure(nodes: int, order: int) -> dict:
         flanking, pair = flanking_values(model), psi_pair(model)
         figures = level_figures(model, solution, flanking, pair)
         ev._result(model, flanking, pair, [figures], solution, [])
+        ev._release_solvers(solution)  # as evaluate does before the field document
         field_document(model, solution)
     timed("post-processing", post)
     out.update(nodes=mesh.nodes, dofs=solution.space.dofs, stages=stage,

@@ -137,6 +137,12 @@ class ConductionProblem:
             owner[self.space.edge_dofs[edges, column]] = edges
         return owner
 
+    def release(self) -> None:
+        """Drop the factorisation (and the link to a nearby problem's): solves after this
+        factorise again. Frees the largest block of memory once all solves are done."""
+        self._solver = None
+        self._nearby = None
+
     @property
     def solver(self):
         if self._solver is None:

@@ -58,6 +58,7 @@ def evaluate(request: EvaluationRequest, progress: Progress | None = None) -> Ev
     levels, solution, warnings = _certify(model, flanking, pair, report)
     report("post-processing", 0.9)
     result = _result(model, flanking, pair, levels, solution, warnings)
+    _release_solvers(solution)  # the field needs temperatures only: free the factorisations
     field = field_document(model, solution)
     report("post-processing", 1.0)
     return Evaluation(result, field)
@@ -93,6 +94,12 @@ def _certify(model: ThermalModel, flanking: list[FlankingU], pair, report: Progr
             break
         mesh = next_level(mesh, error_indicators(model, solution), order)
     return levels, solution, warnings
+
+
+def _release_solvers(solution: LevelSolution) -> None:
+    for run in (solution.design, solution.condensation):
+        if run is not None:
+            run.problem.release()
 
 
 def _result(model, flanking, pair, levels, solution: LevelSolution, warnings) -> dict:
