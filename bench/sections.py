@@ -3,6 +3,9 @@ aluminium bridge and a large synthetic facade section (plain model-v1 request di
 
 from __future__ import annotations
 
+import json
+from pathlib import Path
+
 import numpy as np
 
 #: ISO 10211 Annex A, Case 1 probe grid (rows from the hot edge, columns from the cold edge).
@@ -45,23 +48,10 @@ def _two_envs(rse: float, rsi: float, outside_path, inside_path, theta_i=20.0, t
 
 
 def thin_bridge() -> dict:
-    """330 × 500 mm: concrete, insulation, render, a 2 mm aluminium bridge drawn last."""
-    envs, bounds = _two_envs(0.04, 0.13, [[330, 0], [330, 500]], [[0, 0], [0, 500]])
-    section = {
-        "name": "Thin layers with an aluminium bridge", "unit": "mm",
-        "materials": [{"id": "concrete", "conductivity": 2.3},
-                      {"id": "insulation", "conductivity": 0.03},
-                      {"id": "render", "conductivity": 0.9},
-                      {"id": "aluminium", "conductivity": 160.0}],
-        "regions": [
-            {"material": "concrete", "polygon": [[0, 0], [200, 0], [200, 500], [0, 500]]},
-            {"material": "insulation", "polygon": [[200, 0], [320, 0], [320, 500], [200, 500]]},
-            {"material": "render", "polygon": [[320, 0], [330, 0], [330, 500], [320, 500]]},
-            {"material": "aluminium",
-             "polygon": [[150, 250], [330, 250], [330, 252], [150, 252]]}],
-        "environments": envs, "boundaries": bounds,
-    }
-    return {"section": section}
+    """330 × 500 mm: concrete, insulation, render, a 2 mm aluminium bridge drawn last
+    (examples/thin-bridge.json, shared with the tests)."""
+    return json.loads((Path(__file__).resolve().parent.parent / "examples" /
+                       "thin-bridge.json").read_text())
 
 
 def facade(brackets: int = 24, height: float = 3000.0) -> dict:
