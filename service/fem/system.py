@@ -220,16 +220,23 @@ class ConductionProblem:
 
 
 def log_conductivity_sensitivity(problem: ConductionProblem, theta: np.ndarray,
-                                 groups: np.ndarray, materials: int) -> np.ndarray:
+                                 groups: np.ndarray, materials: int,
+                                 weight: np.ndarray | None = None) -> np.ndarray:
     """∂Φ/∂ln λₘ for the heat flow Φ through some groups, per material index m, in W/m.
 
     One adjoint solve: A_ff z = c_f with c = ∂Φ/∂θ; then ∂Φ/∂ln λₘ = Σ_{e∈m} wₑᵀ Kₑ θₑ with
     w = e − z (e marks fixed dofs whose reaction is part of Φ), because ∂A/∂ln λₘ = Kₘ.
-    Both conductivity components of a material scale together.
+    Both conductivity components of a material scale together. When Φ is the heat flow from
+    one environment, w is that environment's own unit-temperature solution (the problem is
+    symmetric: c is minus its load); a caller holding it passes it as ``weight`` and no solve
+    is made.
     """
-    c, explicit = problem.flow_functional(np.atleast_1d(groups))
-    w = explicit.copy()
-    w[problem.free] -= problem.solver.solve(c[problem.free])
+    if weight is not None:
+        w = weight
+    else:
+        c, explicit = problem.flow_functional(np.atleast_1d(groups))
+        w = explicit.copy()
+        w[problem.free] -= problem.solver.solve(c[problem.free])
     family = FAMILIES[problem.space.order]
     per_element = family.element_products(problem.space, problem.conductivity, w, theta)
     return np.bincount(problem.space.mesh.material, weights=per_element, minlength=materials)

@@ -141,3 +141,4 @@ def test_closed_form_vertex_gradients_match_the_basis_functions():
         basis = p2.basis_gradients(grad_lambda, lam)  # (E, 6, 2)
         direct = np.einsum("eid,eik->edk", basis, theta[space.cell_dofs])
         assert np.allclose(closed[:, a], direct, atol=1e-12)
+
