@@ -83,13 +83,19 @@ def test_two_level_p2_solver_matches_the_direct_solve(monkeypatch):
     assert np.abs(theta - direct).max() < 1e-7
 
 
-def test_other_surface_resistances_are_solved_through_the_nearby_factorisation():
+def design_then_condensation():
+    """A layered problem solved, then the same with another surface resistance on the warm
+    side (the condensation run's situation): both problems, ambient, conductance, its field."""
     design = layered_problem(4)
     ambient = (design.space.mesh.boundary_group == 0).astype(float)
     design.solve(ambient)
     conductance = np.where(design.space.mesh.boundary_group == 0, 4.0, np.inf)
     condensation = design.with_conductance(conductance)
-    theta = condensation.solve(ambient)
+    return design, condensation, ambient, conductance, condensation.solve(ambient)
+
+
+def test_other_surface_resistances_are_solved_through_the_nearby_factorisation():
+    design, condensation, ambient, conductance, theta = design_then_condensation()
     assert isinstance(condensation.solver, solvers.NearbySolver)
     from coldseam.fem.system import ConductionProblem
 
@@ -100,12 +106,7 @@ def test_other_surface_resistances_are_solved_through_the_nearby_factorisation()
 def test_other_surface_resistances_reuse_the_two_level_coarse_factorisation(monkeypatch):
     monkeypatch.setattr(solvers, "DIRECT_LIMIT", 100)
     monkeypatch.setattr(solvers, "CHOLESKY_LIMIT", 100)
-    design = layered_problem(4)
-    ambient = (design.space.mesh.boundary_group == 0).astype(float)
-    design.solve(ambient)
-    conductance = np.where(design.space.mesh.boundary_group == 0, 4.0, np.inf)
-    condensation = design.with_conductance(conductance)
-    theta = condensation.solve(ambient)
+    design, condensation, ambient, conductance, theta = design_then_condensation()
     assert condensation.solver.coarse is design.solver.coarse
     assert condensation.solver.matrix is not design.solver.matrix
     monkeypatch.setattr(solvers, "DIRECT_LIMIT", 300_000)
