@@ -10,24 +10,12 @@ import numpy as np
 
 #: ISO 10211 Annex A, Case 1 probe grid (rows from the hot edge, columns from the cold edge).
 CASE_1_PROBES = [(r, c) for r in range(1, 8) for c in range(1, 5)]
+EXAMPLES = Path(__file__).resolve().parent.parent / "examples"
 
 
 def case_1() -> dict:
-    """ISO 10211 Case 1 as the engine tests build it (tests/thermal/test_validation.py)."""
-    a = 1.0
-    probes = [{"id": f"r{r}c{c}", "point": [c * a / 8, a - r * a / 8]} for r, c in CASE_1_PROBES]
-    section = {
-        "name": "ISO 10211 Case 1",
-        "unit": "m", "materials": [{"id": "m", "conductivity": 1.0}],
-        "regions": [{"material": "m", "polygon": [[0, 0], [a / 2, 0], [a / 2, a], [0, a]]}],
-        "environments": [{"id": "hot", "temperature": 20, "side": "interior"},
-                         {"id": "cold", "temperature": 0, "side": "exterior"}],
-        "boundaries": [
-            {"environment": "cold", "surface_resistance": 0, "path": [[a / 2, 0], [0, 0], [0, a]]},
-            {"environment": "hot", "surface_resistance": 0, "path": [[0, a], [a / 2, a]]}],
-        "probes": probes,
-    }
-    return {"section": section}
+    """ISO 10211 Case 1 (examples/iso10211-case1.json, shared with the validation tests)."""
+    return json.loads((EXAMPLES / "iso10211-case1.json").read_text())
 
 
 def case_1_series(x: float, y: float, a: float = 1.0, terms: int = 4001) -> float:
@@ -50,8 +38,7 @@ def _two_envs(rse: float, rsi: float, outside_path, inside_path, theta_i=20.0, t
 def thin_bridge() -> dict:
     """330 × 500 mm: concrete, insulation, render, a 2 mm aluminium bridge drawn last
     (examples/thin-bridge.json, shared with the tests)."""
-    return json.loads((Path(__file__).resolve().parent.parent / "examples" /
-                       "thin-bridge.json").read_text())
+    return json.loads((EXAMPLES / "thin-bridge.json").read_text())
 
 
 def facade(brackets: int = 24, height: float = 3000.0) -> dict:

@@ -1,6 +1,8 @@
 """The engine against published cases and exact solutions, at default settings."""
 
 import copy
+import json
+from pathlib import Path
 
 import numpy as np
 import pytest
@@ -23,20 +25,9 @@ def case_1_series(x, y, a=1.0, terms=4001):
 
 
 def case_1_section(element="P2"):
-    a = 1.0
-    probes = [{"id": f"r{r}c{c}", "point": [c * a / 8, a - r * a / 8]}
-              for r in range(1, 8) for c in range(1, 5)]
-    section = {
-        "unit": "m", "materials": [{"id": "m", "conductivity": 1.0}],
-        "regions": [{"material": "m", "polygon": [[0, 0], [a / 2, 0], [a / 2, a], [0, a]]}],
-        "environments": [{"id": "hot", "temperature": 20, "side": "interior"},
-                         {"id": "cold", "temperature": 0, "side": "exterior"}],
-        "boundaries": [
-            {"environment": "cold", "surface_resistance": 0, "path": [[a / 2, 0], [0, 0], [0, a]]},
-            {"environment": "hot", "surface_resistance": 0, "path": [[0, a], [a / 2, a]]}],
-        "probes": probes,
-    }
-    return {"section": section, "options": {"element": element}}
+    """ISO 10211 Case 1 with the 28 probes of its table (examples/iso10211-case1.json)."""
+    path = Path(__file__).resolve().parents[2] / "examples" / "iso10211-case1.json"
+    return {**json.loads(path.read_text()), "options": {"element": element}}
 
 
 @pytest.fixture(scope="module")
