@@ -9,7 +9,9 @@ the process meshed before).
 
 from __future__ import annotations
 
+import ctypes
 import logging
+import signal
 import threading
 
 import numpy as np
@@ -32,6 +34,7 @@ def _gmsh():
     if gmsh.isInitialized():
         gmsh.finalize()
     gmsh.initialize(readConfigFiles=False, interruptible=False)
+    _ignore_sigpipe()
     gmsh.option.setNumber("General.Terminal", 0)
     for name, value in {"General.NumThreads": 1,
                         "Mesh.Algorithm": 5, "Mesh.Smoothing": 0,
@@ -40,6 +43,25 @@ def _gmsh():
                         "Geometry.Tolerance": 1e-12, "Geometry.AutoCoherence": 0}.items():
         gmsh.option.setNumber(name, value)
     return gmsh
+
+
+def _ignore_sigpipe() -> None:
+    """gmsh's initialize() puts SIGPIPE back to its default action behind Python's back (Python
+    ignores it and raises BrokenPipeError instead): a later write to a closed socket or pipe
+    then killed the whole process silently (exit status 141). Ignore it again, from any
+    thread (signal.signal works in the main thread only)."""
+    if _python_ignores_sigpipe():
+        try:
+            libc = ctypes.CDLL(None, use_errno=True)
+            libc.signal.restype = ctypes.c_void_p
+            libc.signal.argtypes = [ctypes.c_int, ctypes.c_void_p]
+            libc.signal(int(signal.SIGPIPE), ctypes.c_void_p(1))  # SIG_IGN
+        except (OSError, AttributeError):  # no C library to call: nothing to restore
+            pass
+
+
+def _python_ignores_sigpipe() -> bool:
+    return hasattr(signal, "SIGPIPE") and signal.getsignal(signal.SIGPIPE) == signal.SIG_IGN
 
 
 def triangulate(classified: Classified, plan: SegmentPlan) -> tuple[Mesh, np.ndarray]:

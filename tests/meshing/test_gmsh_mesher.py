@@ -3,9 +3,13 @@
 from __future__ import annotations
 
 import json
+import os
+import signal
+import threading
 from pathlib import Path
 
 import numpy as np
+import pytest
 
 from coldseam.meshing.gmsh_mesher import triangulate
 from coldseam.meshing.sizes import plan
@@ -34,3 +38,26 @@ def test_a_mesh_does_not_depend_on_what_was_meshed_before():
     for mesh in (after_other, again):
         assert np.array_equal(mesh.points, alone.points)
         assert np.array_equal(mesh.triangles, alone.triangles)
+
+
+def ignored_signals() -> int:
+    status = Path("/proc/self/status").read_text()
+    return int(status.split("SigIgn:")[1].split()[0], 16)
+
+
+@pytest.mark.skipif(not Path("/proc/self/status").exists(), reason="reads Linux's /proc")
+def test_meshing_leaves_sigpipe_ignored_so_a_closed_socket_is_an_exception_not_death():
+    """gmsh's start-up reset SIGPIPE to 'terminate': a process that meshed and then wrote to a
+    closed pipe died with status 141 instead of raising BrokenPipeError."""
+    bit = 1 << (signal.SIGPIPE - 1)
+    assert ignored_signals() & bit  # Python ignores it from the start
+    thread = threading.Thread(target=lambda: mesh_of(thin_bridge()))
+    thread.start()
+    thread.join()
+    mesh_of(thin_bridge())
+    assert ignored_signals() & bit
+    reader, writer = os.pipe()
+    os.close(reader)
+    with pytest.raises(BrokenPipeError):
+        os.write(writer, b"x")
+    os.close(writer)
