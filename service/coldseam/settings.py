@@ -18,7 +18,7 @@ from coldseam import DEFAULT_ENGINE
 
 def _default_frontend_dir() -> Path | None:
     """The repository's ``frontend/`` folder beside the package source, when there is one."""
-    candidate = Path(__file__).resolve().parent.parent / "frontend"
+    candidate = Path(__file__).resolve().parents[2] / "frontend"
     return candidate if candidate.is_dir() else None
 
 
