@@ -14,7 +14,8 @@ from fastapi.exceptions import RequestValidationError
 from fastapi.responses import JSONResponse, PlainTextResponse, Response
 from starlette.exceptions import HTTPException as StarletteHTTPException
 
-from coldseam.api.pool import QueueFull
+from coldseam.api.pool import ClusterUnavailable, QueueFull
+from coldseam.api.store import StoreError, StoreUnavailable
 from coldseam.errors import ColdseamError
 
 log = logging.getLogger(__name__)
@@ -29,7 +30,11 @@ STATUS_BY_KIND = {
     "StoreFailed": 500,
     "Timeout": 504,
     "Interrupted": 503,
+    "StoreUnavailable": 503,
+    "ClusterUnavailable": 503,
 }
+#: Seconds a client is asked to wait when the database or the cluster is away.
+UNAVAILABLE_RETRY = 5
 SERVER_FAULTS = {"SolveFailed", "WorkerCrashed", "StoreFailed"}
 
 
@@ -140,6 +145,26 @@ async def _queue_full(request: Request, exc: QueueFull) -> Response:
     return respond(request, body, 429, {"Retry-After": str(exc.retry_after)})
 
 
+async def _store_unavailable(request: Request, exc: StoreUnavailable) -> Response:
+    log.warning("request %s answered 503: %s", request_id_of(request), exc)
+    body = error_body("StoreUnavailable", f"{exc}; the service resumes by itself when the "
+                      f"database is back: try again in {UNAVAILABLE_RETRY} s", "",
+                      request_id_of(request))
+    return respond(request, body, 503, {"Retry-After": str(UNAVAILABLE_RETRY)})
+
+
+async def _cluster_unavailable(request: Request, exc: ClusterUnavailable) -> Response:
+    log.warning("request %s answered 503: %s", request_id_of(request), exc)
+    body = error_body("ClusterUnavailable", f"{exc}; try again in {UNAVAILABLE_RETRY} s", "",
+                      request_id_of(request))
+    return respond(request, body, 503, {"Retry-After": str(UNAVAILABLE_RETRY)})
+
+
+async def _store_error(request: Request, exc: StoreError) -> Response:
+    body = error_body("StoreFailed", str(exc), "", request_id_of(request))
+    return respond(request, body, 500)
+
+
 async def _body_too_large(request: Request, exc: BodyTooLarge) -> Response:
     body = error_body("LimitExceeded", str(exc), "", request_id_of(request))
     return respond(request, body, 413)
@@ -160,5 +185,8 @@ def install(app: FastAPI) -> None:
     app.add_exception_handler(StarletteHTTPException, _http_error)
     app.add_exception_handler(QueueFull, _queue_full)
     app.add_exception_handler(BodyTooLarge, _body_too_large)
+    app.add_exception_handler(StoreUnavailable, _store_unavailable)
+    app.add_exception_handler(StoreError, _store_error)
+    app.add_exception_handler(ClusterUnavailable, _cluster_unavailable)
     app.add_exception_handler(EvaluationFailed, _evaluation_failed)
     app.add_exception_handler(Exception, _unexpected)

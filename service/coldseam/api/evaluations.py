@@ -167,7 +167,8 @@ def record_body(record: Record, live: Any, request_id: str) -> dict[str, Any]:
         result.setdefault("caution", CAUTION)
         return {"id": record.id, **result, "status": "done", **base,
                 "request": json.loads(record.request_text)}
-    body: dict[str, Any] = {**base, "status": record.status, "stage": None, "progress": 0.0}
+    body: dict[str, Any] = {**base, "status": record.status, "stage": record.stage,
+                            "progress": record.progress}
     if record.error is not None:
         error = record.error
         origin = error.get("request_id") or request_id

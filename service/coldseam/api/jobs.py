@@ -6,18 +6,23 @@ from __future__ import annotations
 import logging
 import sqlite3
 import threading
+import time
 from concurrent.futures import Future
 from dataclasses import dataclass, field
 
 from coldseam.api.pool import QueueFull, WorkerPool
 from coldseam.api.slot import Job, Outcome, failure
-from coldseam.api.store import Record, Store, storage_key
+from coldseam.api.store import Record, StoreError, StoreUnavailable, storage_key
+from coldseam.api.stores import EvaluationStore
 from coldseam.schema.evaluation import EvaluationRequest, request_digest
 
 log = logging.getLogger(__name__)
 
 #: Failures caused by the request itself (logged quietly).
 USER_ERRORS = {"InvalidSection", "MeshingFailed", "LimitExceeded"}
+#: What a store raises when it cannot record something.
+STORE_ERRORS = (sqlite3.Error, StoreError)
+STORE_RETRY = 1.0  # s between two attempts to store a result while the database is away
 
 
 @dataclass
@@ -49,8 +54,10 @@ class Submitted:
 class Evaluations:
     """Submit, look up and list evaluations, each scoped to its owner."""
 
-    def __init__(self, store: Store, pool: WorkerPool) -> None:
+    def __init__(self, store: EvaluationStore, pool: WorkerPool,
+                 store_wait: float = 60.0) -> None:
         self.store, self.pool = store, pool
+        self.store_wait = store_wait  # s a finished result waits for an unreachable database
         self._live: dict[str, Live] = {}
         self._lock = threading.Lock()
 
@@ -100,13 +107,17 @@ class Evaluations:
             self._live[job.key].status = "running"
         try:
             self.store.mark_running(job.key)
-        except sqlite3.Error as exc:  # the live state still says running
+        except STORE_ERRORS as exc:  # the live state still says running
             log.error("could not record %s as running: %s", job.key[:12], exc)
 
     def _progressed(self, job: Job, stage: str, fraction: float) -> None:
         with self._lock:
             live = self._live[job.key]
             live.stage, live.progress = stage, fraction
+        try:
+            self.store.progress(job.key, stage, fraction)  # for other servers (shared store)
+        except STORE_ERRORS as exc:
+            log.debug("could not record the progress of %s: %s", job.key[:12], exc)
 
     def _finished(self, job: Job, outcome: Outcome) -> None:
         if outcome.error is not None:
@@ -124,17 +135,37 @@ class Evaluations:
     def _store_outcome(self, job: Job, outcome: Outcome) -> Outcome:
         """Store ``outcome``; what is answered when it cannot be stored."""
         try:
-            self.store.finish(job.key, outcome.result, outcome.field, outcome.error)
+            self._finish_durably(job.key, outcome)
             return outcome
         except (TypeError, ValueError) as exc:
             log.error("result of %s is not plain JSON: %s", job.key[:12], exc)
             outcome = failure("SolveFailed", f"the engine returned a result that is not "
                               f"plain JSON ({exc}); this is an engine fault")
-        except sqlite3.Error as exc:
+        except StoreUnavailable as exc:
+            log.error("result of %s could not be stored within %g s: %s", job.key[:12],
+                      self.store_wait, exc)
+            return failure("Interrupted", f"the evaluation finished but the results database "
+                           f"stayed unreachable for {self.store_wait:g} s, so its result was "
+                           "not kept; send it again")
+        except STORE_ERRORS as exc:
             log.error("result of %s could not be stored: %s", job.key[:12], exc)
             return failure("StoreFailed", f"the result could not be stored ({exc})")
         try:
             self.store.finish(job.key, None, None, outcome.error)
-        except sqlite3.Error as exc:
+        except STORE_ERRORS as exc:
             log.error("failure of %s could not be stored: %s", job.key[:12], exc)
         return outcome
+
+    def _finish_durably(self, key: str, outcome: Outcome) -> None:
+        """Store ``outcome``; while the database is unreachable, try again for ``store_wait``
+        seconds (a restart of the database loses nothing that was evaluated)."""
+        deadline = time.monotonic() + self.store_wait
+        while True:
+            try:
+                self.store.finish(key, outcome.result, outcome.field, outcome.error)
+                return
+            except StoreUnavailable as exc:
+                if time.monotonic() > deadline:
+                    raise
+                log.warning("result of %s waits for the database: %s", key[:12], exc)
+                time.sleep(STORE_RETRY)

@@ -29,7 +29,7 @@ from coldseam.api.jobs import Evaluations
 from coldseam.api.middleware import ServiceMiddleware
 from coldseam.api.models import Health
 from coldseam.api.pool import WorkerPool
-from coldseam.api.store import Store
+from coldseam.api.stores import open_store, redact
 from coldseam.settings import Settings, get_settings
 
 log = logging.getLogger(__name__)
@@ -44,22 +44,38 @@ Figures must be checked by a competent person; local codes and licensed practice
 async def lifespan(app: FastAPI) -> AsyncIterator[None]:
     settings: Settings = app.dependency_overrides.get(get_settings, get_settings)()
     app.state.keys = load_keys(settings)
-    store = Store(settings.database_path)
+    store = await run_in_threadpool(open_store, settings)
     if count := store.interrupt_unfinished("the server stopped before this evaluation "
                                            "finished; send it again"):
         log.warning("%d unfinished evaluations of an earlier run marked failed", count)
-    pool = WorkerPool(settings.workers, settings.queue_size, settings.engine,
-                      settings.evaluation_timeout, settings.worker_start_method,
-                      settings.prestart_workers, settings.worker_memory_mb * 2**20)
-    pool.start()
-    app.state.evaluations = Evaluations(store, pool)
-    log.info("serving with %d workers, data in %s, %s", settings.workers, settings.data_dir,
+    pool = make_pool(settings)
+    await run_in_threadpool(pool.start)
+    app.state.evaluations = Evaluations(store, pool, settings.database_wait)
+    log.info("serving with %s, data in %s, %s",
+             f"the cluster at {settings.cluster}" if settings.cluster
+             else f"{settings.workers} workers",
+             redact(settings.database_url) if settings.database_url else settings.data_dir,
              "open access" if app.state.keys.open else "API keys required")
     try:
         yield
     finally:
         await run_in_threadpool(pool.shutdown)
         store.close()
+
+
+def make_pool(settings: Settings) -> WorkerPool:
+    """The local worker pool, or the Dask cluster of ``settings.cluster``."""
+    memory_limit = settings.worker_memory_mb * 2**20
+    if settings.cluster:
+        from coldseam.api.cluster import ClusterPool
+        from coldseam.api.stores import instance_name
+
+        return ClusterPool(settings.cluster, settings.engine, settings.evaluation_timeout,
+                           settings.queue_size, instance_name(settings), memory_limit,
+                           settings.worker_start_method)
+    return WorkerPool(settings.workers, settings.queue_size, settings.engine,
+                      settings.evaluation_timeout, settings.worker_start_method,
+                      settings.prestart_workers, memory_limit)
 
 
 def create_app(settings: Settings | None = None) -> FastAPI:

@@ -27,6 +27,10 @@ class QueueFull(Exception):
         self.retry_after = retry_after
 
 
+class ClusterUnavailable(Exception):
+    """The Dask scheduler of ``COLDSEAM_CLUSTER`` cannot be reached (answered 503)."""
+
+
 class WorkerPool:
     """``workers`` processes taking jobs from a queue of at most ``queue_size`` waiting."""
 

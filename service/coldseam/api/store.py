@@ -39,6 +39,17 @@ CREATE INDEX IF NOT EXISTS evaluations_by_owner ON evaluations (owner, created_a
 UNFINISHED = ("queued", "running")
 
 
+class StoreError(Exception):
+    """A server store could not do what was asked (besides being unreachable)."""
+
+
+class StoreUnavailable(StoreError):
+    """The database cannot be reached just now (a server store; SQLite never raises it).
+
+    The API answers 503; the service resumes by itself when the database is back.
+    """
+
+
 def storage_key(owner: str, evaluation_id: str) -> str:
     """The row key of ``evaluation_id`` for ``owner`` (a secret-derived tag, or "")."""
     return hashlib.sha256(f"{owner}\n{evaluation_id}".encode()).hexdigest()
@@ -55,6 +66,8 @@ class Record:
     summary: dict[str, Any] | None
     result: dict[str, Any] | None
     error: dict[str, Any] | None
+    stage: str | None = None  # kept by a shared (server) store only; live state otherwise
+    progress: float = 0.0
 
 
 class Store:
@@ -116,6 +129,9 @@ class Store:
              _dumps(error), key),
         )
 
+    def progress(self, key: str, stage: str, fraction: float) -> None:
+        """Nothing to do: one server owns this file and answers from its live state."""
+
     def interrupt_unfinished(self, message: str) -> int:
         """Mark evaluations a previous server left queued or running as failed."""
         error = _dumps({"kind": "Interrupted", "message": message, "field": ""})
@@ -162,9 +178,11 @@ def summarise(result: dict[str, Any] | None) -> dict[str, Any] | None:
 
 
 def _record(row: tuple) -> Record:
+    """A Record from a row of the columns above (and, from a server store, stage, progress)."""
+    live = {"stage": row[9], "progress": row[10] or 0.0} if len(row) > 9 else {}
     return Record(id=row[0], status=row[1], name=row[2], created_at=row[3],
                   updated_at=row[4], request_text=row[5], summary=_loads(row[6]),
-                  result=_loads(row[7]), error=_loads(row[8]))
+                  result=_loads(row[7]), error=_loads(row[8]), **live)
 
 
 def _compact(value: Any) -> str:
