@@ -199,9 +199,13 @@ def _end(process: subprocess.Popen) -> None:
 class Server:
     base: str
     process: subprocess.Popen
+    log: Path
 
     def client(self) -> httpx.Client:
         return httpx.Client(base_url=self.base, timeout=60)
+
+    def log_has(self, text: str) -> bool:
+        return text in self.log.read_text(errors="replace")
 
 
 @contextmanager
@@ -214,7 +218,7 @@ def serve(log: Path, instance: str, **settings: str) -> Iterator[Server]:
         process = subprocess.Popen(
             [sys.executable, "-m", "coldseam.cli", "serve", "--host", "127.0.0.1", "--port",
              str(port)], stdout=out, stderr=out, env=env, start_new_session=True)
-    server = Server(f"http://127.0.0.1:{port}", process)
+    server = Server(f"http://127.0.0.1:{port}", process, log)
     try:
         _wait_healthy(server)
         yield server
