@@ -25,7 +25,7 @@ def _play(store) -> list:
     for number in range(3):
         evaluation_id = f"{number:032x}"
         key = storage_key("owner-a", evaluation_id)
-        store.queue(key, evaluation_id, "owner-a", f"section {number}", '{"n": %d}' % number)
+        store.queue(key, evaluation_id, "owner-a", f"section {number}", json.dumps({"n": number}))
         seen.append(store.get(key).status)
     first = storage_key("owner-a", f"{0:032x}")
     store.mark_running(first)
