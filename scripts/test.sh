@@ -4,7 +4,17 @@
 set -euo pipefail
 cd "$(dirname "$0")/.."
 
-python3 -m pip install --quiet --disable-pip-version-check -e '.[test]'
+python3 -m pip install --quiet --disable-pip-version-check -e '.[test,cluster]'
+
+# The scale-out tests start a real PostgreSQL server from Debian's package (as an unprivileged
+# user, in a temporary folder); they need its binaries, not a running service.
+if ! ls /usr/lib/postgresql/*/bin/initdb >/dev/null 2>&1 && ! command -v initdb >/dev/null 2>&1; then
+  if [ "$(id -u)" = "0" ]; then
+    apt-get update -qq && DEBIAN_FRONTEND=noninteractive apt-get install -y -qq postgresql >/dev/null
+  else
+    echo "PostgreSQL is missing: install Debian's postgresql package (sudo apt-get install postgresql)" >&2
+  fi
+fi
 
 # Optional: CHOLMOD for the direct solver (the engine falls back to SuperLU without it).
 if [ "$(id -u)" = "0" ] && ! python3 -c "import sksparse" 2>/dev/null; then

@@ -1,0 +1,126 @@
+"""Throughput of evaluations on a Dask cluster with 1 and 2 workers, and the database's cost of
+one result: the numbers behind docs/deploy.md's 100-machine arithmetic.
+
+Starts everything itself, on loopback: a PostgreSQL server (Debian's package, initdb in a
+temporary folder), a Dask scheduler with N single-threaded ``dask worker`` processes, and one
+``coldseam serve`` with COLDSEAM_CLUSTER and COLDSEAM_DATABASE_URL. The work is a parameter
+study of the wall_corner template (insulation thickness varied: each variant a distinct
+request), the real engine, submitted at once with ``wait=false`` and followed until done.
+Each worker first evaluates one variant that is not timed (its engine process starts and
+warms up). Then the store alone: queue, mark running and finish of one real result, repeated.
+
+    python bench/cluster.py --quick       # 6 variants per worker count (about a minute)
+    python bench/cluster.py --variants 40
+
+Prints one JSON document. On a shared machine the figures are what this machine gave at that
+moment: give its load average beside them.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import logging
+import os
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+REPO = Path(__file__).resolve().parents[1]
+sys.path.insert(0, str(REPO / "tests" / "scaleout"))
+sys.path.insert(0, str(REPO / "service"))
+
+from scaleout_support import dask_cluster, postgres, serve  # noqa: E402
+
+from coldseam.templates import build  # noqa: E402
+
+log = logging.getLogger("bench.cluster")
+
+
+def variants(count: int, start: int) -> list[dict]:
+    """``count`` wall-corner requests differing in insulation thickness (20 mm + 0.5 mm steps)."""
+    return [build("wall_corner", {"insulation_thickness": 20 + 0.5 * (start + i)})
+            for i in range(count)]
+
+
+def run_study(client, requests: list[dict]) -> float:
+    """Seconds from submitting ``requests`` at once until every one is done."""
+    started = time.perf_counter()
+    locations = []
+    for body in requests:
+        answer = client.post("/api/v1/evaluations", params={"wait": "false"}, json=body)
+        answer.raise_for_status()
+        locations.append(answer.json()["location"])
+    pending = set(locations)
+    while pending:
+        time.sleep(0.2)
+        for location in list(pending):
+            state = client.get(location).json()
+            if state["status"] == "failed":
+                raise RuntimeError(f"{location} failed: {state['error']}")
+            if state["status"] == "done":
+                pending.discard(location)
+    return time.perf_counter() - started
+
+
+def cluster_throughput(pg, workers: int, count: int, folder: Path, offset: int) -> dict:
+    url = pg.new_database()
+    with dask_cluster(folder / f"dask-{workers}.log", workers) as cluster, \
+         serve(folder / f"server-{workers}.log", f"bench{workers}", database_url=url,
+               cluster=cluster.address, queue_size="1000") as server, server.client() as client:
+        run_study(client, variants(workers, offset))  # warm-up: one per worker
+        seconds = run_study(client, variants(count, offset + workers))
+    return {"workers": workers, "evaluations": count, "seconds": round(seconds, 2),
+            "per_second": round(count / seconds, 3),
+            "per_worker_per_second": round(count / seconds / workers, 3)}
+
+
+def store_cost(pg, repeats: int) -> dict:
+    """Mean wall time and database growth of storing one real result (queue, running,
+    finish: three transactions, each committed to disk)."""
+    import psycopg
+
+    from coldseam.api.store import storage_key
+    from coldseam.api.store_pg import PostgresStore
+    from coldseam.schema.evaluation import EvaluationRequest
+    from coldseam.thermal.evaluate import evaluate
+
+    evaluation = evaluate(EvaluationRequest.model_validate(build("wall_corner", {})), None)
+    url = pg.new_database()
+    store = PostgresStore(url, "bench")
+    started = time.perf_counter()
+    for i in range(repeats):
+        key = storage_key("", f"{i:032x}")
+        store.queue(key, f"{i:032x}", "", "bench", json.dumps(build("wall_corner", {})))
+        store.mark_running(key)
+        store.finish(key, evaluation.result, evaluation.field, None)
+    seconds = (time.perf_counter() - started) / repeats
+    store.close()
+    with psycopg.connect(url) as conn:
+        size = conn.execute("SELECT pg_total_relation_size('evaluations')").fetchone()[0]
+    return {"results": repeats, "ms_per_result": round(1000 * seconds, 2),
+            "transactions_per_result": 3, "bytes_per_result": size // repeats}
+
+
+def main() -> None:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--variants", type=int, default=20, help="timed evaluations per run")
+    parser.add_argument("--quick", action="store_true", help="6 evaluations per run")
+    args = parser.parse_args()
+    count = 6 if args.quick else args.variants
+    logging.basicConfig(level=logging.INFO, format="%(message)s")
+    report: dict = {"load_average_at_start": os.getloadavg(), "cpus": os.cpu_count()}
+    with tempfile.TemporaryDirectory(prefix="coldseam-bench-") as tmp, postgres() as pg:
+        folder = Path(tmp)
+        report["runs"] = [cluster_throughput(pg, n, count, folder, 300 * (n - 1))
+                          for n in (1, 2)]
+        one, two = report["runs"]
+        report["ratio_2_to_1"] = round(two["per_second"] / one["per_second"], 2)
+        report["store"] = store_cost(pg, 50 if args.quick else 200)
+    report["load_average_at_end"] = os.getloadavg()
+    print(json.dumps(report, indent=2))
+
+
+if __name__ == "__main__":
+    main()
