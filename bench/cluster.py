@@ -25,6 +25,7 @@ import os
 import sys
 import tempfile
 import time
+import zlib
 from pathlib import Path
 
 REPO = Path(__file__).resolve().parents[1]
@@ -45,23 +46,43 @@ def variants(count: int, start: int) -> list[dict]:
 
 
 def run_study(client, requests: list[dict]) -> float:
-    """Seconds from submitting ``requests`` at once until every one is done."""
+    """Seconds from submitting ``requests`` at once until every one is done (followed by one
+    look at the list every 0.2 s, so that following costs the server little)."""
     started = time.perf_counter()
-    locations = []
     for body in requests:
-        answer = client.post("/api/v1/evaluations", params={"wait": "false"}, json=body)
-        answer.raise_for_status()
-        locations.append(answer.json()["location"])
-    pending = set(locations)
-    while pending:
+        client.post("/api/v1/evaluations", params={"wait": "false"}, json=body
+                    ).raise_for_status()
+    while True:
         time.sleep(0.2)
-        for location in list(pending):
-            state = client.get(location).json()
-            if state["status"] == "failed":
-                raise RuntimeError(f"{location} failed: {state['error']}")
-            if state["status"] == "done":
-                pending.discard(location)
-    return time.perf_counter() - started
+        page = client.get("/api/v1/evaluations", params={"limit": 100}).json()
+        states = [item["status"] for item in page["items"]]
+        if "failed" in states:
+            raise RuntimeError(f"an evaluation failed: {page}")
+        if states.count("done") == page["total"]:
+            return time.perf_counter() - started
+
+
+_TICK = os.sysconf("SC_CLK_TCK")
+
+
+def cpu_seconds(root: int) -> float:
+    """User and system CPU time of process ``root`` and its live descendants."""
+    total, stack = 0.0, [root]
+    while stack:
+        pid = stack.pop()
+        try:
+            fields = Path(f"/proc/{pid}/stat").read_text().rsplit(")", 1)[1].split()
+            total += (int(fields[11]) + int(fields[12])) / _TICK
+            for task in os.listdir(f"/proc/{pid}/task"):
+                stack += [int(c) for c in
+                          Path(f"/proc/{pid}/task/{task}/children").read_text().split()]
+        except (OSError, ValueError):
+            continue
+    return total
+
+
+def postmaster(pg) -> int:
+    return int((pg.data / "postmaster.pid").read_text().split()[0])
 
 
 def cluster_throughput(pg, workers: int, count: int, folder: Path, offset: int) -> dict:
@@ -70,10 +91,16 @@ def cluster_throughput(pg, workers: int, count: int, folder: Path, offset: int) 
          serve(folder / f"server-{workers}.log", f"bench{workers}", database_url=url,
                cluster=cluster.address, queue_size="1000") as server, server.client() as client:
         run_study(client, variants(workers, offset))  # warm-up: one per worker
+        parts = {"api_server": server.process.pid, "postgres": postmaster(pg),
+                 "dask_workers": cluster.workers[0].pid, "dask_scheduler": cluster.scheduler.pid}
+        before = {name: cpu_seconds(pid) for name, pid in parts.items()}
         seconds = run_study(client, variants(count, offset + workers))
+        cpu = {name: round((cpu_seconds(pid) - before[name]) / count, 4)
+               for name, pid in parts.items()}
     return {"workers": workers, "evaluations": count, "seconds": round(seconds, 2),
             "per_second": round(count / seconds, 3),
-            "per_worker_per_second": round(count / seconds / workers, 3)}
+            "per_worker_per_second": round(count / seconds / workers, 3),
+            "cpu_seconds_per_evaluation": cpu}
 
 
 def store_cost(pg, repeats: int) -> dict:
@@ -87,6 +114,10 @@ def store_cost(pg, repeats: int) -> dict:
     from coldseam.thermal.evaluate import evaluate
 
     evaluation = evaluate(EvaluationRequest.model_validate(build("wall_corner", {})), None)
+    field_json = json.dumps(evaluation.field, separators=(",", ":"))
+    packing = time.perf_counter()
+    packed = len(zlib.compress(field_json.encode(), 6))
+    packing = time.perf_counter() - packing
     url = pg.new_database()
     store = PostgresStore(url, "bench")
     started = time.perf_counter()
@@ -100,7 +131,10 @@ def store_cost(pg, repeats: int) -> dict:
     with psycopg.connect(url) as conn:
         size = conn.execute("SELECT pg_total_relation_size('evaluations')").fetchone()[0]
     return {"results": repeats, "ms_per_result": round(1000 * seconds, 2),
-            "transactions_per_result": 3, "bytes_per_result": size // repeats}
+            "of_which_ms_compressing_the_field": round(1000 * packing, 2),
+            "transactions_per_result": 3, "bytes_per_result": size // repeats,
+            "field_json_bytes": len(field_json), "field_compressed_bytes": packed,
+            "result_json_bytes": len(json.dumps(evaluation.result))}
 
 
 def main() -> None:
