@@ -7,7 +7,9 @@ temporary folder), a Dask scheduler with N single-threaded ``dask worker`` proce
 study of the wall_corner template (insulation thickness varied: each variant a distinct
 request), the real engine, submitted at once with ``wait=false`` and followed until done.
 Each worker first evaluates one variant that is not timed (its engine process starts and
-warms up). Then the store alone: queue, mark running and finish of one real result, repeated.
+warms up). CPU time per evaluation of each part (API server, PostgreSQL, Dask workers with
+their engine processes, scheduler) is read from /proc, less what that part spends idle
+(measured for 3 s before). Then the store alone: queue, mark running and finish of one real result, repeated.
 
     python bench/cluster.py --quick       # 6 variants per worker count (about a minute)
     python bench/cluster.py --variants 40
@@ -63,6 +65,7 @@ def run_study(client, requests: list[dict]) -> float:
 
 
 _TICK = os.sysconf("SC_CLK_TCK")
+IDLE_SECONDS = 3.0
 
 
 def cpu_seconds(root: int) -> float:
@@ -93,14 +96,18 @@ def cluster_throughput(pg, workers: int, count: int, folder: Path, offset: int) 
         run_study(client, variants(workers, offset))  # warm-up: one per worker
         parts = {"api_server": server.process.pid, "postgres": postmaster(pg),
                  "dask_workers": cluster.workers[0].pid, "dask_scheduler": cluster.scheduler.pid}
+        idle = {name: cpu_seconds(pid) for name, pid in parts.items()}
+        time.sleep(IDLE_SECONDS)  # what each part spends doing nothing (heartbeats, polls)
         before = {name: cpu_seconds(pid) for name, pid in parts.items()}
+        idle = {name: (before[name] - idle[name]) / IDLE_SECONDS for name in parts}
         seconds = run_study(client, variants(count, offset + workers))
-        cpu = {name: round((cpu_seconds(pid) - before[name]) / count, 4)
+        cpu = {name: round((cpu_seconds(pid) - before[name] - idle[name] * seconds) / count, 4)
                for name, pid in parts.items()}
     return {"workers": workers, "evaluations": count, "seconds": round(seconds, 2),
             "per_second": round(count / seconds, 3),
             "per_worker_per_second": round(count / seconds / workers, 3),
-            "cpu_seconds_per_evaluation": cpu}
+            "cpu_seconds_per_evaluation": cpu,
+            "idle_cpu_per_second": {name: round(rate, 4) for name, rate in idle.items()}}
 
 
 def store_cost(pg, repeats: int) -> dict:

@@ -16,6 +16,7 @@ from __future__ import annotations
 import logging
 import multiprocessing
 import threading
+import time
 from typing import Any
 
 from coldseam.api.slot import Job, Outcome, WorkerSlot
@@ -23,6 +24,8 @@ from coldseam.api.slot import Job, Outcome, WorkerSlot
 log = logging.getLogger(__name__)
 
 _local = threading.local()  # one engine process per Dask worker thread
+#: Seconds between two progress events of one evaluation (stage changes included).
+PROGRESS_INTERVAL = 0.5
 
 
 def evaluate_on_worker(key: str, token: str, request: dict[str, Any],
@@ -39,8 +42,14 @@ def evaluate_on_worker(key: str, token: str, request: dict[str, Any],
     def send(kind: str, **fields: Any) -> None:
         worker.log_event(config["topic"], {"key": key, "token": token, "kind": kind, **fields})
 
+    last = [0.0]
+
     def progress(job: Job, stage: str, fraction: float) -> None:
-        send("progress", stage=stage, fraction=fraction)
+        # every event passes through the single-threaded scheduler: a few per evaluation
+        now = time.monotonic()
+        if now - last[0] >= PROGRESS_INTERVAL:
+            last[0] = now
+            send("progress", stage=stage, fraction=fraction)
 
     slot = _slot(config["engine"], config["memory_limit"], config["start_method"])
     job = Job(key=key, request=request, on_start=_nothing, on_progress=progress,
