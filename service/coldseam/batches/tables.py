@@ -70,13 +70,18 @@ def _cell(item: dict[str, Any], key: str) -> Cell:
     return value
 
 
+#: Numbers in both files: 16 significant digits, what the XLSX writer keeps (a spreadsheet
+#: cell holds a double, but the file stores it as text of 16 digits).
+NUMBER_FORMAT = "%.16g"
+
+
 def to_csv(rows: list[list[Cell]]) -> str:
-    """CSV text; numbers written so that they read back exactly (``repr``)."""
+    """CSV text; numbers as the XLSX file holds them (NUMBER_FORMAT)."""
     out = io.StringIO()
     writer = csv.writer(out, lineterminator="\n")
     for row in rows:
-        writer.writerow(["" if cell is None else repr(cell) if isinstance(cell, float)
-                         else cell for cell in row])
+        writer.writerow(["" if cell is None else NUMBER_FORMAT % cell
+                         if isinstance(cell, float) else cell for cell in row])
     return out.getvalue()
 
 
