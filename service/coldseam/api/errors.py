@@ -32,6 +32,7 @@ STATUS_BY_KIND = {
     "Interrupted": 503,
     "StoreUnavailable": 503,
     "ClusterUnavailable": 503,
+    "Cancelled": 409,
 }
 #: Seconds a client is asked to wait when the database or the cluster is away.
 UNAVAILABLE_RETRY = 5

@@ -13,6 +13,8 @@ from fastapi.middleware.gzip import GZipMiddleware
 
 from coldseam import ENGINE_VERSION, __version__
 from coldseam.api import (
+    batch_report,
+    batches,
     catalogue,
     docs,
     errors,
@@ -24,6 +26,7 @@ from coldseam.api import (
     pictures,
 )
 from coldseam.api.auth import load_keys
+from coldseam.api.batch_runner import BatchRunner
 from coldseam.api.deps import SettingsDep, get_owner
 from coldseam.api.jobs import Evaluations
 from coldseam.api.middleware import ServiceMiddleware
@@ -51,6 +54,9 @@ async def lifespan(app: FastAPI) -> AsyncIterator[None]:
     pool = make_pool(settings)
     await run_in_threadpool(pool.start)
     app.state.evaluations = Evaluations(store, pool, settings.database_wait)
+    app.state.batches = BatchRunner(app.state.evaluations, settings)
+    if resumed := app.state.batches.start():
+        log.warning("%d unfinished batch items of an earlier run sent again", resumed)
     log.info("serving with %s, data in %s, %s",
              f"the cluster at {settings.cluster}" if settings.cluster
              else f"{settings.workers} workers",
@@ -59,6 +65,7 @@ async def lifespan(app: FastAPI) -> AsyncIterator[None]:
     try:
         yield
     finally:
+        await run_in_threadpool(app.state.batches.stop)
         await run_in_threadpool(pool.shutdown)
         store.close()
 
@@ -87,7 +94,7 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     else:
         settings = get_settings()
     api = APIRouter(prefix="/api/v1", dependencies=[Depends(get_owner)])
-    for module in (evaluations, pictures, imports, catalogue):
+    for module in (evaluations, pictures, imports, catalogue, batches, batch_report):
         api.include_router(module.router)
     app.include_router(api)
     fallback.install(app)
