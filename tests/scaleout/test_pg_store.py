@@ -11,8 +11,9 @@ import psycopg
 import pytest
 from scaleout_support import free_port
 
+from coldseam.api.batch_store import Figures, NewItem
 from coldseam.api.store import Store, StoreUnavailable, storage_key
-from coldseam.api.store_pg import PostgresStore
+from coldseam.api.store_pg import PostgresStore, head_revision
 
 RESULT = {"L2D": 0.25, "psi": {"value": 0.05}, "condensation": {"fRsi": 0.81, "verdict": "ok"},
           "heat_flows": {"in": 5.0}}
@@ -85,7 +86,11 @@ def test_servers_starting_together_migrate_the_schema_once(database_url):
         thread.join(60)
     assert errors == [] and len(stores) == 4
     with psycopg.connect(database_url) as conn:
-        assert conn.execute("SELECT version_num FROM alembic_version").fetchall() == [("0001",)]
+        versions = conn.execute("SELECT version_num FROM alembic_version").fetchall()
+        tables = {row[0] for row in conn.execute(
+            "SELECT tablename FROM pg_tables WHERE schemaname='public'")}
+    assert versions == [(head_revision(),)] and head_revision() == "0002"
+    assert tables == {"alembic_version", "evaluations", "batches", "batch_items"}
     for store in stores:
         store.close()
 
@@ -109,3 +114,52 @@ def test_an_unreachable_database_is_store_unavailable():
     url = f"postgresql://postgres@127.0.0.1:{free_port()}/none"
     with pytest.raises(StoreUnavailable, match="cannot be reached"):
         PostgresStore(url, "lonely", wait=0)
+
+
+def _play_batches(store) -> list:
+    """One sequence of batch changes (as the SQLite store's own tests make); the answers."""
+    items = [NewItem(item_id=f"J{n}", template="floor_slab",
+                     parameters={"insulation_thickness": 100 + n}, length=2.0 + n,
+                     request='{"section": {}}', evaluation_id=f"e{n}") for n in range(4)]
+    failed = NewItem("bad", "nope", {}, None, None, None, {"kind": "InvalidSection",
+                                                           "message": "no template"})
+    store.create_batch("k", "b1", "owner", "schedule", {"name": "schedule"}, [*items, failed])
+    store.create_batch("k2", "b2", "owner", None, {}, items[:1])
+    seen = [store.batch("k").name, store.batch("k").spec, store.batch("nope"),
+            store.batch_items("k"), store.batch_items("k", limit=2, offset=1),
+            store.batch_counts("k"), store.item_request("k", 1)]
+    store.mark_item_running("k", 0)
+    store.finish_item("k", 0, Figures(0.043, 0.95, 18.8, 0.47, "pass"), None)
+    store.mark_item_running("k", 1)
+    store.finish_item("k", 1, None, {"kind": "Timeout", "message": "slow", "field": ""})
+    store.mark_item_running("k", 2)
+    store.requeue_item("k", 2)
+    store.mark_item_running("k", 3)
+    seen += [store.batch_items("k"), store.batch_counts("k"), store.batch_psi_l("k"),
+             store.item_request("k", 0), store.unfinished_items(),
+             store.cancel_batch("k2", {"kind": "Cancelled", "message": "c", "field": ""}),
+             store.batch("k2").cancelled, store.batch_page("owner", 10, 0)[1],
+             store.batch_page("nobody", 10, 0)]
+    return seen
+
+
+def test_postgres_batch_tables_answer_as_the_sqlite_ones(database_url, tmp_path):
+    sqlite = Store(tmp_path / "batches.sqlite3")
+    postgres = PostgresStore(database_url, "server-a")
+    try:
+        assert _play_batches(postgres) == _play_batches(sqlite)
+    finally:
+        sqlite.close()
+        postgres.close()
+
+
+def test_a_starting_server_resumes_only_its_own_batches(database_url):
+    mine, theirs = PostgresStore(database_url, "here"), PostgresStore(database_url, "there")
+    item = NewItem("J1", "floor_slab", {}, 1.0, '{"section": {}}', "e1")
+    mine.create_batch("mine", "b1", "o", None, {}, [item])
+    theirs.create_batch("theirs", "b2", "o", None, {}, [item])
+    theirs.mark_item_running("theirs", 0)
+    assert PostgresStore(database_url, "here").unfinished_items() == [("mine", 0)]
+    assert mine.batch_counts("theirs")["running"] == 1
+    mine.close()
+    theirs.close()

@@ -24,6 +24,7 @@ from typing import Any
 
 from sqlalchemy import Connection, create_engine, exc, text
 
+from coldseam.api.batch_store_pg import PgBatchTables
 from coldseam.api.store import (
     UNFINISHED,
     Record,
@@ -55,8 +56,9 @@ def engine_url(url: str) -> str:
     raise ValueError("COLDSEAM_DATABASE_URL must start with postgresql://")
 
 
-class PostgresStore:
-    """The evaluations of one PostgreSQL database, for the server named ``instance``."""
+class PostgresStore(PgBatchTables):
+    """The evaluations (and batches, ``PgBatchTables``) of one PostgreSQL database, for the
+    server named ``instance``."""
 
     def __init__(self, url: str, instance: str, wait: float = 30.0) -> None:
         self.instance, self.url = instance, redact(url)
@@ -192,13 +194,26 @@ class PostgresStore:
                                      f"{UNFINISHED!r}")).scalar_one()
 
 
-def upgrade_head(conn: Connection) -> None:
-    """Bring the schema to the newest migration, on ``conn`` (inside its transaction)."""
-    from alembic import command
+def _config():
     from alembic.config import Config
 
     config = Config()
     config.set_main_option("script_location", "coldseam.api:migrations")
+    return config
+
+
+def head_revision() -> str:
+    """The newest migration carried by this package."""
+    from alembic.script import ScriptDirectory
+
+    return ScriptDirectory.from_config(_config()).get_current_head()
+
+
+def upgrade_head(conn: Connection) -> None:
+    """Bring the schema to the newest migration, on ``conn`` (inside its transaction)."""
+    from alembic import command
+
+    config = _config()
     config.attributes["connection"] = conn
     command.upgrade(config, "head")
 
