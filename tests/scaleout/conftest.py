@@ -14,8 +14,6 @@ sys.path.insert(0, str(Path(__file__).resolve().parent))
 
 from scaleout_support import Dask, Postgres, dask_cluster, postgres  # noqa: E402
 
-ENGINE = "scaleout_engines:evaluate"
-
 
 @pytest.fixture(autouse=True)
 def _no_service_environment(monkeypatch: pytest.MonkeyPatch) -> None:

@@ -4,7 +4,9 @@ in a temporary folder, run as an unprivileged user), a Dask scheduler with worke
 
 from __future__ import annotations
 
+import copy
 import glob
+import json
 import os
 import pwd
 import shutil
@@ -22,6 +24,8 @@ from pathlib import Path
 import httpx
 
 HERE = Path(__file__).resolve().parent
+ENGINE = "scaleout_engines:evaluate"
+WALL = json.loads((HERE.parents[1] / "examples" / "wall-1d.json").read_text())
 PG_USER = "coldseam-pg"  # the unprivileged account PostgreSQL runs as when the tests are root
 
 
@@ -249,3 +253,36 @@ def wait_for(check, timeout: float, what: str, every: float = 0.2):
             return value
         time.sleep(every)
     raise AssertionError(f"timed out waiting for {what}")
+
+
+def request(description: str = "", name: str = "wall") -> dict:
+    """The example wall; ``description`` tells the stand-in engine what to do."""
+    body = copy.deepcopy(WALL)
+    body["section"].update(name=name, description=description)
+    return body
+
+
+def when(value, check):
+    """``value`` when ``check(value)``, else None (for wait_for)."""
+    return value if check(value) else None
+
+
+def all_done(client: httpx.Client, locations: list[str]) -> list[dict] | None:
+    """The states of the evaluations at ``locations`` once all are done."""
+    states = [client.get(location) for location in locations]
+    if all(s.status_code == 200 and s.json()["status"] == "done" for s in states):
+        return [s.json() for s in states]
+    return None
+
+
+def batch_of(names: list[str], description: str) -> dict:
+    """A batch of stand-in requests, one item per name."""
+    return {"name": "scale-out test batch",
+            "items": [{"id": name, "request": request(description, name)} for name in names]}
+
+
+def batch_finished(client: httpx.Client, location: str) -> dict | None:
+    answer = client.get(location)
+    if answer.status_code == 200 and answer.json()["status"] in ("done", "failed"):
+        return answer.json()
+    return None

@@ -7,9 +7,15 @@ import os
 import signal
 
 import pytest
-from conftest import ENGINE
-from scaleout_support import serve, wait_for
-from test_shared_database import _all_done, _if, request
+from scaleout_support import (
+    ENGINE,
+    batch_finished,
+    batch_of,
+    request,
+    serve,
+    wait_for,
+    when,
+)
 
 pytestmark = pytest.mark.slow
 
@@ -26,13 +32,13 @@ def test_evaluations_run_on_the_cluster_and_progress_reaches_both_servers(
          serve(tmp_path / "b.log", "b", **settings) as b, a.client() as ca, b.client() as cb:
         location = ca.post("/api/v1/evaluations", params={"wait": "false"},
                            json=request("sleep=3")).json()["location"]
-        here = wait_for(lambda: _if(ca.get(location).json(),
+        here = wait_for(lambda: when(ca.get(location).json(),
                                     lambda s: s["stage"] == "solving"), 30, "progress on a")
-        there = wait_for(lambda: _if(cb.get(location).json(),
+        there = wait_for(lambda: when(cb.get(location).json(),
                                      lambda s: s["stage"] == "solving"), 10, "progress on b")
         assert here["status"] == there["status"] == "running"
         assert 0 < there["progress"] < 1
-        done = wait_for(lambda: _if(cb.get(location).json(),
+        done = wait_for(lambda: when(cb.get(location).json(),
                                     lambda s: s["status"] == "done"), 30, "the result")
         # the engine ran in a child of a Dask worker process, not of either server
         assert parent_of(done["pid"]) in cluster.worker_pids()
@@ -41,13 +47,14 @@ def test_evaluations_run_on_the_cluster_and_progress_reaches_both_servers(
 
 def test_the_limits_of_one_evaluation_hold_on_the_cluster(database_url, cluster, tmp_path):
     settings = {"database_url": database_url, "cluster": cluster.address, "engine": ENGINE,
-                "evaluation_timeout": "2", "worker_memory_mb": "300"}
+                "evaluation_timeout": "8", "worker_memory_mb": "300"}
     with serve(tmp_path / "a.log", "a", **settings) as a, a.client() as ca:
-        slow = ca.post("/api/v1/evaluations", json=request("sleep=20", name="slow"))
-        assert slow.status_code == 504 and slow.json()["kind"] == "Timeout", slow.text
         hog = ca.post("/api/v1/evaluations", json=request("hog=800", name="hog"))
         assert hog.status_code == 413 and hog.json()["kind"] == "LimitExceeded", hog.text
         assert hog.json()["field"] == "/options/max_nodes" and "300 MiB" in hog.json()["detail"]
+        slow = ca.post("/api/v1/evaluations", json=request("sleep=60", name="slow"))
+        assert slow.status_code == 504 and slow.json()["kind"] == "Timeout", slow.text
+        assert "8 s limit" in slow.json()["detail"]
         typed = ca.post("/api/v1/evaluations", json=request("limit", name="typed"))
         assert typed.status_code == 413 and typed.json()["field"] == "/options/max_nodes"
         fine = ca.post("/api/v1/evaluations", json=request(name="fine after"))
@@ -55,21 +62,45 @@ def test_the_limits_of_one_evaluation_hold_on_the_cluster(database_url, cluster,
 
 
 def test_a_dask_worker_killed_during_a_batch_loses_nothing(database_url, cluster, tmp_path):
-    settings = {"database_url": database_url, "cluster": cluster.address, "engine": ENGINE,
-                "queue_size": "20"}
+    settings = {"database_url": database_url, "cluster": cluster.address, "engine": ENGINE}
     names = [f"variant {i}" for i in range(8)]
     with serve(tmp_path / "a.log", "a", **settings) as a, a.client() as ca:
-        locations = [ca.post("/api/v1/evaluations", params={"wait": "false"},
-                             json=request("sleep=2", name=name)).json()["location"]
-                     for name in names]
-        wait_for(lambda: any(ca.get(x).json()["stage"] == "solving" for x in locations), 30,
-                 "an evaluation solving")
-        before = cluster.worker_pids()
-        victim = before[0]
+        posted = ca.post("/api/v1/batches", json=batch_of(names, "sleep=2"))
+        assert posted.status_code == 202, posted.text
+        location = posted.headers["Location"]
+        wait_for(lambda: ca.get(location).json()["counts"]["running"] >= 2, 30,
+                 "batch items running on both workers")
+        victim = cluster.worker_pids()[0]
         os.kill(victim, signal.SIGKILL)
-        states = wait_for(lambda: _all_done(ca, locations), 90, "every evaluation done")
-        assert [s["name"] for s in states] == names
-        assert all(s["engine"] == "scaleout-test" for s in states)
+        batch = wait_for(lambda: batch_finished(ca, location), 90, "the batch finished")
+        assert batch["status"] == "done", batch
+        assert batch["counts"] == {"queued": 0, "running": 0, "done": 8, "failed": 0}
+        assert [item["id"] for item in batch["items"]] == names
+        for item in batch["items"]:
+            result = ca.get(f"/api/v1/evaluations/{item['evaluation_id']}").json()
+            assert result["status"] == "done" and result["name"] == item["id"]
         # the nanny has replaced the killed worker
         wait_for(lambda: len(cluster.worker_pids()) == 2, 30, "the worker replaced")
         assert victim not in cluster.worker_pids()
+
+
+def test_the_database_restarted_during_a_batch_is_503_meanwhile_and_loses_nothing(
+        database_url, cluster, tmp_path, pg):
+    settings = {"database_url": database_url, "cluster": cluster.address, "engine": ENGINE}
+    names = [f"item {i}" for i in range(6)]
+    with serve(tmp_path / "a.log", "a", **settings) as a, a.client() as ca:
+        location = ca.post("/api/v1/batches", json=batch_of(names, "sleep=2")
+                           ).headers["Location"]
+        wait_for(lambda: ca.get(location).json()["counts"]["running"] >= 1, 30, "running")
+        pg.stop()
+        try:
+            away = ca.get(location)
+            assert away.status_code == 503 and away.json()["kind"] == "StoreUnavailable"
+            assert ca.post("/api/v1/batches", json=batch_of(["late"], "")).status_code == 503
+            wait_for(lambda: a.log_has("waits for the database"), 30,
+                     "a finished result waiting for the database")
+        finally:
+            pg.start()
+        batch = wait_for(lambda: batch_finished(ca, location), 90, "the batch finished")
+        assert batch["counts"] == {"queued": 0, "running": 0, "done": 6, "failed": 0}
+        assert [item["id"] for item in batch["items"]] == names

@@ -2,29 +2,16 @@
 
 from __future__ import annotations
 
-import copy
-import json
 import os
 import signal
-from pathlib import Path
 
-import httpx
 import pytest
-from conftest import ENGINE
-from scaleout_support import serve, wait_for
+from scaleout_support import ENGINE, WALL, all_done, request, serve, wait_for, when
 
 pytestmark = pytest.mark.slow
 
 KEY = "shared-test-key-1"
 OTHER_KEY = "shared-test-key-2"
-WALL = json.loads((Path(__file__).resolve().parents[2] / "examples" / "wall-1d.json")
-                  .read_text())
-
-
-def request(description: str = "", name: str = "wall") -> dict:
-    body = copy.deepcopy(WALL)
-    body["section"].update(name=name, description=description)
-    return body
 
 
 def auth(key: str = KEY) -> dict[str, str]:
@@ -70,14 +57,14 @@ def test_the_other_server_sees_a_running_evaluation_and_leaves_it_alone(database
                            json=request("sleep=6"))
         location = accepted.json()["location"]
         with serve(tmp_path / "b.log", "b", **settings) as b, b.client() as cb:
-            running = wait_for(lambda: _if(cb.get(location).json(),
+            running = wait_for(lambda: when(cb.get(location).json(),
                                            lambda s: s["stage"] == "solving"),
                                30, "server b to see the evaluation solving")
             assert running["status"] == "running" and 0 < running["progress"] < 1
         # server b stopped and ... (restarted) marks nothing of server a failed
         with serve(tmp_path / "b.log", "b", **settings) as b, b.client() as cb:
             assert cb.get(location).json()["status"] == "running"
-            done = wait_for(lambda: _if(cb.get(location).json(),
+            done = wait_for(lambda: when(cb.get(location).json(),
                                         lambda s: s["status"] == "done"), 30, "the result")
             assert done["name"] == "wall" and done["engine"] == "scaleout-test"
 
@@ -115,18 +102,6 @@ def test_the_database_away_is_503_and_service_resumes(database_url, tmp_path, pg
                      "a finished result waiting for the database")
         finally:
             pg.start()
-        states = wait_for(lambda: _all_done(ca, locations), 60, "every evaluation done")
+        states = wait_for(lambda: all_done(ca, locations), 60, "every evaluation done")
         assert [s["name"] for s in states] == [f"item {i}" for i in range(6)]
         assert ca.post("/api/v1/evaluations", json=request(name="new")).status_code == 200
-
-
-def _all_done(client: httpx.Client, locations: list[str]) -> list[dict] | None:
-    states = [client.get(location) for location in locations]
-    if all(s.status_code == 200 and s.json()["status"] == "done" for s in states):
-        return [s.json() for s in states]
-    return None
-
-
-def _if(value, check):
-    return value if check(value) else None
-

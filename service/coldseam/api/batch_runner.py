@@ -14,6 +14,7 @@ from __future__ import annotations
 import logging
 import secrets
 import threading
+import time
 from collections import OrderedDict, deque
 from concurrent.futures import Future
 from typing import Any
@@ -22,7 +23,7 @@ from coldseam.api.batch_prepare import checked, prepare
 from coldseam.api.batch_store import figures_of
 from coldseam.api.jobs import Evaluations
 from coldseam.api.pool import QueueFull
-from coldseam.api.store import storage_key
+from coldseam.api.store import StoreUnavailable, storage_key
 from coldseam.batches.spec import BatchSpec
 from coldseam.errors import ColdseamError
 from coldseam.settings import Settings
@@ -30,6 +31,7 @@ from coldseam.settings import Settings
 log = logging.getLogger(__name__)
 
 RETRY_SECONDS = 0.5  # wait after the pool refused an item, unless an item finishes first
+STORE_RETRY = 1.0  # s between two attempts while a server store (PostgreSQL) is unreachable
 CANCELLED = {"kind": "Cancelled", "message": "the batch was cancelled before this item ran",
              "field": ""}
 
@@ -40,13 +42,22 @@ class BatchRunner:
     def __init__(self, evaluations: Evaluations, settings: Settings,
                  in_flight: int | None = None) -> None:
         self.evaluations, self.store, self.settings = evaluations, evaluations.store, settings
-        self.in_flight_limit = in_flight or settings.workers + 1
+        self._fixed_in_flight = in_flight
         self._lines: OrderedDict[str, deque[int]] = OrderedDict()
         self._in_flight = 0
         self._cond = threading.Condition()
         self._stopping = False
         self._thread = threading.Thread(target=self._loop, name="coldseam-batches",
                                         daemon=True)
+
+    @property
+    def in_flight_limit(self) -> int:
+        """Items handed to the pool at a time: its workers (local processes, or the cluster's
+        threads, which may change) and one waiting."""
+        if self._fixed_in_flight:
+            return self._fixed_in_flight
+        capacity = getattr(self.evaluations.pool, "capacity", None)
+        return (capacity() if capacity is not None else self.settings.workers) + 1
 
     def start(self) -> int:
         """Start the thread, after putting every unfinished item of earlier runs back in
@@ -100,6 +111,16 @@ class BatchRunner:
                 self._in_flight += 1
             try:
                 refused = self._submit(key, position)
+            except StoreUnavailable as exc:  # not handed to the pool: back in line, later
+                log.warning("batch item %s/%d waits for the database: %s", key[:12], position,
+                            exc)
+                try:
+                    self._until_available(self._back_in_line, key, position)
+                except StoreUnavailable:
+                    log.error("batch item %s/%d left for a restart: the database stayed "
+                              "away", key[:12], position)
+                    self._release()
+                continue
             except Exception:  # noqa: BLE001 - one item's fault must not end the runner
                 log.exception("batch item %s/%d could not be submitted", key[:12], position)
                 self._item_failed(key, position, {"kind": "SolveFailed", "message":
@@ -156,18 +177,35 @@ class BatchRunner:
         """Record how an item ended (on a pool thread, or here for a stored result)."""
         try:
             outcome = done.result() if done is not None else None
-            if outcome is not None and not outcome.ok and \
-                    outcome.error["kind"] == "Interrupted":
-                self.store.requeue_item(key, position)  # the server is stopping: resumed
-            elif outcome is not None and not outcome.ok:
-                self.store.finish_item(key, position, None, outcome.error)
-            else:
-                record = self.store.get(evaluation_key)
-                self.store.finish_item(key, position, figures_of(record.result or {}), None)
+            self._until_available(self._record_outcome, key, position, evaluation_key, outcome)
         except Exception:  # noqa: BLE001 - the item stays unfinished, reported after restart
             log.exception("batch item %s/%d could not be recorded", key[:12], position)
         finally:
             self._release()
+
+    def _record_outcome(self, key: str, position: int, evaluation_key: str,
+                        outcome: Any) -> None:
+        if outcome is not None and not outcome.ok and outcome.error["kind"] == "Interrupted":
+            self.store.requeue_item(key, position)  # the server is stopping: resumed
+        elif outcome is not None and not outcome.ok:
+            self.store.finish_item(key, position, None, outcome.error)
+        else:
+            record = self.store.get(evaluation_key)
+            self.store.finish_item(key, position, figures_of(record.result or {}), None)
+
+    def _until_available(self, action: Any, *args: Any) -> None:
+        """``action(*args)``, tried again while the store is unreachable (a server store
+        restarting), for up to ``settings.database_wait`` s or until the runner stops; then
+        the item is left for a restart to resume."""
+        deadline = time.monotonic() + self.settings.database_wait
+        while True:
+            try:
+                action(*args)
+                return
+            except StoreUnavailable:
+                if self._stopping or time.monotonic() > deadline:
+                    raise
+                time.sleep(STORE_RETRY)
 
     def _item_failed(self, key: str, position: int, error: dict[str, Any]) -> None:
         try:

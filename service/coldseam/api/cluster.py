@@ -77,6 +77,10 @@ class ClusterPool:
             self._threads_at = now
         return self._threads
 
+    def capacity(self) -> int:
+        """Evaluations that can run at once: the cluster's worker threads."""
+        return self.threads()
+
     def submit(self, job: Job) -> None:
         """Send ``job`` to the cluster; QueueFull when too many are in flight."""
         token = f"coldseam-{job.key[:16]}-{uuid.uuid4().hex[:12]}"

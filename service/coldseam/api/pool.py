@@ -64,6 +64,10 @@ class WorkerPool:
                 raise QueueFull(self.retry_after())
             self._queue.put(job)
 
+    def capacity(self) -> int:
+        """Evaluations that can run at once."""
+        return len(self._slots)
+
     def retry_after(self) -> int:
         """Seconds after which a place in the queue is likely free."""
         waiting = self._queue.qsize() + len(self._slots)
