@@ -99,7 +99,7 @@ class ClusterPool:
         with self._lock:
             self._jobs[job.key] = (job, token, future)
         future.add_done_callback(lambda done: self._events.put(("finish", job.key, token,
-                                                                time.monotonic())))
+                                                                done)))
 
     def retry_after(self) -> int:
         """Seconds after which a place in the queue is likely free."""
@@ -149,22 +149,32 @@ class ClusterPool:
                 log.exception("cluster %s event of %s failed", kind, key[:12])
 
     def _deliver(self, kind: str, entry: tuple[Job, str, Any], detail: Any) -> None:
-        job, _, future = entry
+        job = entry[0]
         if kind == "start":
             job.extra["started"] = time.monotonic()
             job.on_start(job)
         elif kind == "progress":
             job.on_progress(job, str(detail["stage"]), float(detail["fraction"]))
         elif kind == "finish":
-            outcome = self._outcome(future)
+            outcome = self._outcome(detail)  # the finished future
             started = job.extra.get("started")
             if started is not None:
-                self._mean_seconds = 0.8 * self._mean_seconds + 0.2 * (detail - started)
+                self._mean_seconds = 0.8 * self._mean_seconds + 0.2 * (time.monotonic() -
+                                                                       started)
             self.completed += 1
             job.on_finish(job, outcome)
 
     def _outcome(self, future: Any) -> Outcome:
-        """What the task ended with: its Outcome, or why it has none."""
+        """What the task ended with: its Outcome, or why it has none (never raises: the job
+        must finish)."""
+        try:
+            return self._read_outcome(future)
+        except Exception as exc:  # noqa: BLE001 - reported as the evaluation's failure
+            log.exception("outcome of cluster task %s unreadable", future.key)
+            return failure("WorkerCrashed", f"the outcome of the evaluation could not be read "
+                           f"from the cluster ({type(exc).__name__}); send it again")
+
+    def _read_outcome(self, future: Any) -> Outcome:
         if future.status == "finished":
             try:
                 return outcome_of(future.result(timeout=RESULT_TIMEOUT))
