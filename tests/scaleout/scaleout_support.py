@@ -185,18 +185,25 @@ def dask_cluster(log: Path, workers: int) -> Iterator[Dask]:
         cluster.close()
 
 
-def _end(process: subprocess.Popen) -> None:
-    """SIGTERM the process group of ``process`` (nanny and its worker), SIGKILL if it hangs."""
-    if process.poll() is not None:
-        return
+def _end(process: subprocess.Popen, group: bool = True) -> None:
+    """SIGTERM ``process`` (with ``group``, its whole process group: a nanny and its worker),
+    then SIGKILL whatever of its group is left (a server's workers, when it hung)."""
+    if process.poll() is None:
+        try:
+            if group:
+                os.killpg(process.pid, signal.SIGTERM)
+            else:
+                process.terminate()
+            process.wait(timeout=20)
+        except subprocess.TimeoutExpired:
+            pass
+        except ProcessLookupError:
+            return
     try:
-        os.killpg(process.pid, signal.SIGTERM)
-        process.wait(timeout=15)
-    except subprocess.TimeoutExpired:
         os.killpg(process.pid, signal.SIGKILL)
-        process.wait()
-    except ProcessLookupError:
+    except (ProcessLookupError, PermissionError):
         pass
+    process.wait()
 
 
 @dataclass
@@ -227,7 +234,7 @@ def serve(log: Path, instance: str, **settings: str) -> Iterator[Server]:
         _wait_healthy(server)
         yield server
     finally:
-        _end(process)
+        _end(process, group=False)  # the server stops its own workers
 
 
 def _wait_healthy(server: Server, timeout: float = 90.0) -> None:

@@ -54,19 +54,18 @@ def test_the_other_server_sees_a_running_evaluation_and_leaves_it_alone(database
     settings = {"database_url": database_url, "engine": ENGINE, "workers": "1"}
     with serve(tmp_path / "a.log", "a", **settings) as a, a.client() as ca:
         accepted = ca.post("/api/v1/evaluations", params={"wait": "false"},
-                           json=request("sleep=6"))
+                           json=request("sleep=60"))
         location = accepted.json()["location"]
         with serve(tmp_path / "b.log", "b", **settings) as b, b.client() as cb:
             running = wait_for(lambda: when(cb.get(location).json(),
-                                           lambda s: s["stage"] == "solving"),
+                                            lambda s: s.get("stage") == "solving"),
                                30, "server b to see the evaluation solving")
             assert running["status"] == "running" and 0 < running["progress"] < 1
-        # server b stopped and ... (restarted) marks nothing of server a failed
+        # server b stopped, and started again: it marks nothing of server a's failed
         with serve(tmp_path / "b.log", "b", **settings) as b, b.client() as cb:
-            assert cb.get(location).json()["status"] == "running"
-            done = wait_for(lambda: when(cb.get(location).json(),
-                                        lambda s: s["status"] == "done"), 30, "the result")
-            assert done["name"] == "wall" and done["engine"] == "scaleout-test"
+            later = cb.get(location).json()
+            assert later["status"] == "running" and later["progress"] >= running["progress"]
+            assert ca.get(location).json()["status"] == "running"
 
 
 def test_a_restarted_server_interrupts_its_own_unfinished_work(database_url, tmp_path, pg):
