@@ -5,7 +5,8 @@ Starts everything itself, on loopback: a PostgreSQL server (Debian's package, in
 temporary folder), a Dask scheduler with N single-threaded ``dask worker`` processes, and one
 ``coldseam serve`` with COLDSEAM_CLUSTER and COLDSEAM_DATABASE_URL. The work is a parameter
 study of the wall_corner template (insulation thickness varied: each variant a distinct
-request), the real engine, submitted at once with ``wait=false`` and followed until done.
+request), the real engine, posted as one batch (``POST /api/v1/batches``) and followed until
+done.
 Each worker first evaluates one variant that is not timed (its engine process starts and
 warms up). CPU time per evaluation of each part (API server, PostgreSQL, Dask workers with
 their engine processes, scheduler) is read from /proc, less what that part spends idle
@@ -41,26 +42,27 @@ from coldseam.templates import build  # noqa: E402
 log = logging.getLogger("bench.cluster")
 
 
-def variants(count: int, start: int) -> list[dict]:
-    """``count`` wall-corner requests differing in insulation thickness (20 mm + 0.5 mm steps)."""
-    return [build("wall_corner", {"insulation_thickness": 20 + 0.5 * (start + i)})
-            for i in range(count)]
+def variants(count: int, start: int) -> dict:
+    """A batch of ``count`` wall-corner variants differing in insulation thickness (20 mm
+    and 0.5 mm steps), each a distinct request."""
+    return {"name": f"bench {start}", "items": [
+        {"id": f"V{start + i}", "template": "wall_corner",
+         "parameters": {"insulation_thickness": 20 + 0.5 * (start + i)}}
+        for i in range(count)]}
 
 
-def run_study(client, requests: list[dict]) -> float:
-    """Seconds from submitting ``requests`` at once until every one is done (followed by one
-    look at the list every 0.2 s, so that following costs the server little)."""
+def run_study(client, batch: dict) -> float:
+    """Seconds from posting ``batch`` until every item is done (one look every 0.2 s)."""
     started = time.perf_counter()
-    for body in requests:
-        client.post("/api/v1/evaluations", params={"wait": "false"}, json=body
-                    ).raise_for_status()
+    posted = client.post("/api/v1/batches", json=batch)
+    posted.raise_for_status()
+    location = posted.headers["Location"]
     while True:
         time.sleep(0.2)
-        page = client.get("/api/v1/evaluations", params={"limit": 100}).json()
-        states = [item["status"] for item in page["items"]]
-        if "failed" in states:
-            raise RuntimeError(f"an evaluation failed: {page}")
-        if states.count("done") == page["total"]:
+        state = client.get(location, params={"limit": 1}).json()
+        if state["status"] in ("done", "failed"):
+            if state["counts"]["failed"]:
+                raise RuntimeError(f"items failed: {state['counts']}")
             return time.perf_counter() - started
 
 
