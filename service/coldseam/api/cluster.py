@@ -6,7 +6,8 @@ Each job is one task (``cluster_task.evaluate_on_worker``, ``pure=False``, ``ret
 scheduler runs it again elsewhere when the worker running it is lost (up to its
 ``allowed-failures``), and ``retries`` covers an exception in the task itself. Start and
 progress come back as events on this server's topic; one dispatcher thread calls the
-callbacks in order, so a job's start and progress never follow its finish.
+callbacks in order, so a job's start and progress never follow its finish; finished outcomes
+are stored by a few threads side by side.
 """
 
 from __future__ import annotations
@@ -16,6 +17,7 @@ import queue
 import threading
 import time
 import uuid
+from concurrent.futures import ThreadPoolExecutor
 from typing import Any
 
 from distributed import Client
@@ -31,6 +33,8 @@ RETRIES = 2  # further attempts of a task that raised
 CONNECT_TIMEOUT = 20.0  # s to reach the scheduler at start
 RESULT_TIMEOUT = 60.0  # s to fetch a finished task's outcome from its worker
 THREADS_REFRESH = 5.0  # s between two looks at how many worker threads the cluster has
+#: Threads storing finished outcomes (zlib of the field, JSON, the database: in parallel).
+FINISHERS = 4
 
 
 class ClusterPool:
@@ -48,6 +52,7 @@ class ClusterPool:
         self._events: queue.Queue[tuple | None] = queue.Queue()
         self._dispatcher = threading.Thread(target=self._dispatch, name="coldseam-cluster",
                                             daemon=True)
+        self._finishers = ThreadPoolExecutor(FINISHERS, thread_name_prefix="coldseam-finish")
         self._threads, self._threads_at = 1, -THREADS_REFRESH
         self._mean_seconds = 5.0
         self.stopping = False
@@ -121,6 +126,7 @@ class ClusterPool:
         self._events.put(None)
         if self._dispatcher.is_alive():
             self._dispatcher.join(10.0)
+        self._finishers.shutdown(wait=True)
         for job, _, _ in list(self._jobs.values()):
             job.on_finish(job, failure("Interrupted", "the server stopped before this "
                                        "evaluation finished; send it again"))
@@ -143,10 +149,16 @@ class ClusterPool:
                     continue  # an earlier attempt of a finished job, or another server's
                 if kind == "finish":
                     self._jobs.pop(key)
-            try:
-                self._deliver(kind, entry, detail)
-            except Exception:  # noqa: BLE001 - one job's callback must not stop the others
-                log.exception("cluster %s event of %s failed", kind, key[:12])
+            if kind == "finish":  # after every earlier event of the job: those came first
+                self._finishers.submit(self._safely, kind, entry, detail)
+            else:
+                self._safely(kind, entry, detail)
+
+    def _safely(self, kind: str, entry: tuple[Job, str, Any], detail: Any) -> None:
+        try:
+            self._deliver(kind, entry, detail)
+        except Exception:  # noqa: BLE001 - one job's callback must not stop the others
+            log.exception("cluster %s event of %s failed", kind, entry[0].key[:12])
 
     def _deliver(self, kind: str, entry: tuple[Job, str, Any], detail: Any) -> None:
         job = entry[0]
@@ -158,10 +170,11 @@ class ClusterPool:
         elif kind == "finish":
             outcome = self._outcome(detail)  # the finished future
             started = job.extra.get("started")
-            if started is not None:
-                self._mean_seconds = 0.8 * self._mean_seconds + 0.2 * (time.monotonic() -
-                                                                       started)
-            self.completed += 1
+            with self._lock:
+                if started is not None:
+                    self._mean_seconds = 0.8 * self._mean_seconds + 0.2 * (
+                        time.monotonic() - started)
+                self.completed += 1
             job.on_finish(job, outcome)
 
     def _outcome(self, future: Any) -> Outcome:
