@@ -20,6 +20,7 @@ import time
 from typing import Any
 
 from coldseam.api.slot import Job, Outcome, WorkerSlot
+from coldseam.api.store import _compact, pack_field
 
 log = logging.getLogger(__name__)
 
@@ -56,7 +57,14 @@ def evaluate_on_worker(key: str, token: str, request: dict[str, Any],
               on_finish=_nothing, label=token)
     send("start")
     outcome = slot.run(job, config["timeout"])
-    return {"result": outcome.result, "field": outcome.field, "error": outcome.error}
+    try:  # packed here, on the worker: the API server only stores the bytes
+        field = pack_field(outcome.field)
+        _compact(outcome.result)
+    except (TypeError, ValueError) as exc:
+        return {"result": None, "field": None, "error": {
+            "kind": "SolveFailed", "field": "", "message": f"the engine returned a result "
+            f"that is not plain JSON ({exc}); this is an engine fault"}}
+    return {"result": outcome.result, "field": field, "error": outcome.error}
 
 
 def _slot(engine: str, memory_limit: int, start_method: str) -> WorkerSlot:

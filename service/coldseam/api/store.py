@@ -121,11 +121,11 @@ class Store(BatchTables):
         self._write("UPDATE evaluations SET status='running', updated_at=? WHERE key=?",
                     (time.time(), key))
 
-    def finish(self, key: str, result: dict[str, Any] | None, field: dict[str, Any] | None,
-               error: dict[str, Any] | None) -> None:
-        """Store the outcome of an evaluation in one transaction."""
+    def finish(self, key: str, result: dict[str, Any] | None,
+               field: dict[str, Any] | bytes | None, error: dict[str, Any] | None) -> None:
+        """Store the outcome of an evaluation in one transaction (``field``: see pack_field)."""
         status = "failed" if error is not None else "done"
-        packed = zlib.compress(_compact(field).encode(), 6) if field is not None else None
+        packed = pack_field(field)
         self._write(
             "UPDATE evaluations SET status=?, updated_at=?, summary=?, result=?, field=?, "
             "error=? WHERE key=?",
@@ -169,6 +169,14 @@ class Store(BatchTables):
                 "FROM evaluations WHERE owner=? ORDER BY created_at DESC, rowid DESC "
                 "LIMIT ? OFFSET ?", (owner, limit, offset)).fetchall()
         return [_record(row) for row in rows], total
+
+
+def pack_field(field: dict[str, Any] | bytes | None) -> bytes | None:
+    """The temperature field as stored: zlib of its compact JSON (bytes are taken as packed
+    already, by a cluster worker)."""
+    if field is None or isinstance(field, bytes):
+        return field
+    return zlib.compress(_compact(field).encode(), 6)
 
 
 def summarise(result: dict[str, Any] | None) -> dict[str, Any] | None:

@@ -30,9 +30,9 @@ from coldseam.api.store import (
     Record,
     StoreError,
     StoreUnavailable,
-    _compact,
     _dumps,
     _record,
+    pack_field,
     summarise,
 )
 from coldseam.api.stores import redact
@@ -141,12 +141,12 @@ class PostgresStore(PgBatchTables):
         self._write("UPDATE evaluations SET stage=:stage, progress=:fraction WHERE key=:key "
                     "AND status='running'", {"stage": stage, "fraction": fraction, "key": key})
 
-    def finish(self, key: str, result: dict[str, Any] | None, field: dict[str, Any] | None,
-               error: dict[str, Any] | None) -> None:
+    def finish(self, key: str, result: dict[str, Any] | None,
+               field: dict[str, Any] | bytes | None, error: dict[str, Any] | None) -> None:
         """Store the outcome of an evaluation in one transaction."""
         self._progress_written.pop(key, None)
         status = "failed" if error is not None else "done"
-        packed = zlib.compress(_compact(field).encode(), 6) if field is not None else None
+        packed = pack_field(field)
         self._write(
             "UPDATE evaluations SET status=:status, updated_at=:now, summary=:summary, "
             "result=:result, field=:field, error=:error, stage=NULL, progress=0 WHERE key=:key",
