@@ -43,12 +43,20 @@ def test_evaluations_run_on_the_cluster_and_progress_reaches_both_servers(
         # the engine ran in a child of a Dask worker process, not of either server
         assert parent_of(done["pid"]) in cluster.worker_pids()
         assert ca.get(location).json() == done
+        # the field, packed on the worker, reads back as the engine made it, on both servers
+        field = cb.get(f"{location}/field")
+        assert field.status_code == 200 and field.content == ca.get(f"{location}/field").content
+        assert field.json()["temperature"] == [20.0, 0.0, 10.0]
 
 
 def test_the_limits_of_one_evaluation_hold_on_the_cluster(database_url, cluster, tmp_path):
     settings = {"database_url": database_url, "cluster": cluster.address, "engine": ENGINE,
-                "evaluation_timeout": "8", "worker_memory_mb": "300"}
+                "evaluation_timeout": "8", "worker_memory_mb": "300", "max_nodes": "2000"}
     with serve(tmp_path / "a.log", "a", **settings) as a, a.client() as ca:
+        many = request(name="many nodes")
+        many["options"] = {"max_nodes": 50_000}
+        nodes = ca.post("/api/v1/evaluations", json=many)
+        assert nodes.status_code == 413 and nodes.json()["field"] == "/options/max_nodes"
         hog = ca.post("/api/v1/evaluations", json=request("hog=800", name="hog"))
         assert hog.status_code == 413 and hog.json()["kind"] == "LimitExceeded", hog.text
         assert hog.json()["field"] == "/options/max_nodes" and "300 MiB" in hog.json()["detail"]
