@@ -23,7 +23,7 @@ from typing import Any
 from distributed import Client
 from distributed.scheduler import KilledWorker
 
-from coldseam.api.cluster_task import evaluate_on_worker, outcome_of
+from coldseam.api.cluster_task import evaluate_on_worker, outcome_of, prestart
 from coldseam.api.pool import ClusterUnavailable, QueueFull
 from coldseam.api.slot import Job, Outcome, failure
 
@@ -41,7 +41,8 @@ class ClusterPool:
     """Jobs run as Dask tasks; at most ``queue_size`` beyond the cluster's threads in flight."""
 
     def __init__(self, address: str, engine_spec: str, timeout: float, queue_size: int,
-                 instance: str, memory_limit: int = 0, start_method: str = "spawn") -> None:
+                 instance: str, memory_limit: int = 0, start_method: str = "spawn",
+                 prestart: bool = True) -> None:
         self.address, self._queue_size = address, queue_size
         self.topic = f"coldseam-progress-{instance}-{uuid.uuid4().hex[:8]}"
         self._config = {"engine": engine_spec, "timeout": timeout, "topic": self.topic,
@@ -55,6 +56,7 @@ class ClusterPool:
         self._finishers = ThreadPoolExecutor(FINISHERS, thread_name_prefix="coldseam-finish")
         self._threads, self._threads_at = 1, -THREADS_REFRESH
         self._mean_seconds = 5.0
+        self._prestart = prestart
         self.stopping = False
         self.completed = 0
 
@@ -68,6 +70,12 @@ class ClusterPool:
                                      f"reached ({exc})") from None
         self._client.subscribe_topic(self.topic, self._event)
         self._dispatcher.start()
+        if self._prestart:
+            try:  # each worker starts its engine processes in the background
+                self._client.run(prestart, self._config)
+            except Exception as exc:  # noqa: BLE001 - the first task starts them instead
+                log.warning("the cluster workers could not start engine processes ahead "
+                            "(%s: %s)", type(exc).__name__, exc)
         log.info("evaluations go to the Dask cluster at %s (%d worker threads)", self.address,
                  self.threads())
 

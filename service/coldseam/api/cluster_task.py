@@ -1,7 +1,7 @@
 """The task a Dask worker runs for one evaluation (no FastAPI here: this runs on the cluster).
 
 A Dask worker runs the engine as the local pool does: in a child process of its own, in a
-``WorkerSlot`` kept per worker thread, with the same wall-time and resident-memory limits, so
+``WorkerSlot`` (one per task running, kept idle between tasks), with the same wall-time and resident-memory limits, so
 that an overrun or a crash fails that evaluation with the same error kinds as locally
 (Timeout, LimitExceeded, WorkerCrashed) and the Dask worker itself carries on. Start and
 progress go to the API server as Dask events on the server's topic
@@ -15,6 +15,7 @@ from __future__ import annotations
 
 import logging
 import multiprocessing
+import os
 import threading
 import time
 from typing import Any
@@ -24,14 +25,18 @@ from coldseam.api.store import _compact, pack_field
 
 log = logging.getLogger(__name__)
 
-_local = threading.local()  # one engine process per Dask worker thread
+#: Idle engine process slots of this Dask worker process (one is taken per task), and the
+#: (engine, memory limit, start method) each was made for.
+_idle: list[WorkerSlot] = []
+_idle_lock = threading.Lock()
+_made_for: dict[int, tuple[str, int, str]] = {}
 #: Seconds between two progress events of one evaluation (stage changes included).
 PROGRESS_INTERVAL = 0.5
 
 
 def evaluate_on_worker(key: str, token: str, request: dict[str, Any],
                        config: dict[str, Any]) -> dict[str, Any]:
-    """Evaluate ``request`` in this worker thread's engine process; the Outcome as a dict.
+    """Evaluate ``request`` in an engine process of this Dask worker; the Outcome as a dict.
 
     ``config``: engine (spec), timeout (s), memory_limit (bytes, 0: none), start_method,
     topic (where start and progress events go).
@@ -52,11 +57,14 @@ def evaluate_on_worker(key: str, token: str, request: dict[str, Any],
             last[0] = now
             send("progress", stage=stage, fraction=fraction)
 
-    slot = _slot(config["engine"], config["memory_limit"], config["start_method"])
+    slot = _take(_wanted(config))
     job = Job(key=key, request=request, on_start=_nothing, on_progress=progress,
               on_finish=_nothing, label=token)
     send("start")
-    outcome = slot.run(job, config["timeout"])
+    try:
+        outcome = slot.run(job, config["timeout"])
+    finally:
+        _give_back(slot)
     try:  # packed here, on the worker: the API server only stores the bytes
         field = pack_field(outcome.field)
         _compact(outcome.result)
@@ -67,19 +75,61 @@ def evaluate_on_worker(key: str, token: str, request: dict[str, Any],
     return {"result": outcome.result, "field": field, "error": outcome.error}
 
 
-def _slot(engine: str, memory_limit: int, start_method: str) -> WorkerSlot:
-    """This thread's engine process slot, made anew when the server asks for other limits."""
-    wanted = (engine, memory_limit, start_method)
-    slot = getattr(_local, "slot", None)
-    if slot is not None and _local.config == wanted:
-        return slot
-    if slot is not None:
-        slot.kill()
-    allow_children()
-    ctx = multiprocessing.get_context(start_method)
-    slot = WorkerSlot(ctx, engine, f"coldseam-engine-{threading.get_ident()}", memory_limit)
-    _local.slot, _local.config = slot, wanted
+def _wanted(config: dict[str, Any]) -> tuple[str, int, str]:
+    return (config["engine"], config["memory_limit"], config["start_method"])
+
+
+def _take(wanted: tuple[str, int, str]) -> WorkerSlot:
+    """An idle engine process slot of this Dask worker process made for ``wanted`` (engine,
+    memory limit, start method), or a new one; slots made for other limits are stopped."""
+    stale = []
+    with _idle_lock:
+        while _idle:
+            slot = _idle.pop()
+            if _made_for.get(id(slot)) == wanted:
+                break
+            stale.append(slot)
+        else:
+            slot = None
+    for old in stale:
+        _made_for.pop(id(old), None)
+        old.kill()
+    if slot is None:
+        allow_children()
+        engine, memory_limit, start_method = wanted
+        slot = WorkerSlot(multiprocessing.get_context(start_method), engine,
+                          f"coldseam-engine-{os.getpid()}-{len(_made_for)}", memory_limit)
+        _made_for[id(slot)] = wanted
     return slot
+
+
+def _give_back(slot: WorkerSlot) -> None:
+    with _idle_lock:
+        _idle.append(slot)
+
+
+def prestart(config: dict[str, Any], dask_worker: Any = None) -> int:
+    """Start one engine process per thread of this Dask worker, in the background (run on
+    each worker by ``Client.run``, which passes ``dask_worker``, when a server connects);
+    how many it starts."""
+    count = dask_worker.state.nthreads if dask_worker is not None else 1
+    wanted = _wanted(config)
+
+    def start() -> None:
+        for slot in [_take(wanted) for _ in range(count)]:
+            try:
+                if slot.process is None:
+                    slot.start()
+            except (OSError, RuntimeError) as exc:  # the first task tries again
+                log.warning("engine process could not be started: %s", exc)
+            _give_back(slot)
+
+    with _idle_lock:
+        ready = sum(1 for slot in _idle if _made_for.get(id(slot)) == wanted)
+    if ready >= count:
+        return 0
+    threading.Thread(target=start, name="coldseam-prestart", daemon=True).start()
+    return count
 
 
 def allow_children() -> None:

@@ -79,7 +79,7 @@ def make_pool(settings: Settings) -> WorkerPool:
 
         return ClusterPool(settings.cluster, settings.engine, settings.evaluation_timeout,
                            settings.queue_size, instance_name(settings), memory_limit,
-                           settings.worker_start_method)
+                           settings.worker_start_method, settings.prestart_workers)
     return WorkerPool(settings.workers, settings.queue_size, settings.engine,
                       settings.evaluation_timeout, settings.worker_start_method,
                       settings.prestart_workers, memory_limit)
