@@ -70,20 +70,33 @@ _TICK = os.sysconf("SC_CLK_TCK")
 IDLE_SECONDS = 3.0
 
 
-def cpu_seconds(root: int) -> float:
-    """User and system CPU time of process ``root`` and its live descendants."""
-    total, stack = 0.0, [root]
+def cpu_seconds(root: int, depth: int | None = None) -> float:
+    """User and system CPU time of process ``root`` and its live descendants (only those
+    ``depth`` generations below it, when given)."""
+    total, stack = 0.0, [(root, 0)]
     while stack:
-        pid = stack.pop()
+        pid, level = stack.pop()
         try:
             fields = Path(f"/proc/{pid}/stat").read_text().rsplit(")", 1)[1].split()
-            total += (int(fields[11]) + int(fields[12])) / _TICK
+            if depth is None or level == depth:
+                total += (int(fields[11]) + int(fields[12])) / _TICK
             for task in os.listdir(f"/proc/{pid}/task"):
-                stack += [int(c) for c in
+                stack += [(int(c), level + 1) for c in
                           Path(f"/proc/{pid}/task/{task}/children").read_text().split()]
         except (OSError, ValueError):
             continue
     return total
+
+
+def part_cpu(parts: dict[str, int]) -> dict[str, float]:
+    """CPU seconds of each part; the Dask workers also split into the nanny, the worker
+    processes and their engine processes."""
+    cpu = {name: cpu_seconds(pid) for name, pid in parts.items()}
+    root = parts["dask_workers"]
+    for name, depth in (("dask_nanny", 0), ("dask_worker_processes", 1),
+                        ("engine_processes", 2)):
+        cpu[name] = cpu_seconds(root, depth)
+    return cpu
 
 
 def postmaster(pg) -> int:
@@ -98,13 +111,14 @@ def cluster_throughput(pg, workers: int, count: int, folder: Path, offset: int) 
         run_study(client, variants(workers, offset))  # warm-up: one per worker
         parts = {"api_server": server.process.pid, "postgres": postmaster(pg),
                  "dask_workers": cluster.workers[0].pid, "dask_scheduler": cluster.scheduler.pid}
-        idle = {name: cpu_seconds(pid) for name, pid in parts.items()}
+        idle = part_cpu(parts)
         time.sleep(IDLE_SECONDS)  # what each part spends doing nothing (heartbeats, polls)
-        before = {name: cpu_seconds(pid) for name, pid in parts.items()}
-        idle = {name: (before[name] - idle[name]) / IDLE_SECONDS for name in parts}
+        before = part_cpu(parts)
+        idle = {name: (before[name] - idle[name]) / IDLE_SECONDS for name in before}
         seconds = run_study(client, variants(count, offset + workers))
-        cpu = {name: round((cpu_seconds(pid) - before[name] - idle[name] * seconds) / count, 4)
-               for name, pid in parts.items()}
+        after = part_cpu(parts)
+        cpu = {name: round((after[name] - before[name] - idle[name] * seconds) / count, 4)
+               for name in after}
     return {"workers": workers, "evaluations": count, "seconds": round(seconds, 2),
             "per_second": round(count / seconds, 3),
             "per_worker_per_second": round(count / seconds / workers, 3),
