@@ -12,8 +12,8 @@ warms up). CPU time per evaluation of each part (API server, PostgreSQL, Dask wo
 their engine processes, scheduler) is read from /proc, less what that part spends idle
 (measured for 3 s before). Then the store alone: queue, mark running and finish of one real result, repeated.
 
-    python bench/cluster.py --quick       # 6 variants per worker count (about a minute)
-    python bench/cluster.py --variants 40
+    python bench/cluster.py --quick       # 6 variants, each worker count once (a minute)
+    python bench/cluster.py --variants 40  # 40 variants, each worker count twice (1, 2, 2, 1)
 
 Prints one JSON document. On a shared machine the figures are what this machine gave at that
 moment: give its load average beside them.
@@ -25,6 +25,7 @@ import argparse
 import json
 import logging
 import os
+import statistics
 import sys
 import tempfile
 import time
@@ -165,17 +166,23 @@ def store_cost(pg, repeats: int) -> dict:
 def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--variants", type=int, default=20, help="timed evaluations per run")
-    parser.add_argument("--quick", action="store_true", help="6 evaluations per run")
+    parser.add_argument("--quick", action="store_true", help="6 evaluations, one round")
+    parser.add_argument("--rounds", type=int, default=2, help="runs of each worker count, "
+                        "alternating (1, 2, 2, 1, ...), against a load that changes")
     args = parser.parse_args()
     count = 6 if args.quick else args.variants
+    args.rounds = 1 if args.quick else max(1, args.rounds)
     logging.basicConfig(level=logging.INFO, format="%(message)s")
     report: dict = {"load_average_at_start": os.getloadavg(), "cpus": os.cpu_count()}
     with tempfile.TemporaryDirectory(prefix="coldseam-bench-") as tmp, postgres() as pg:
         folder = Path(tmp)
-        report["runs"] = [cluster_throughput(pg, n, count, folder, 300 * (n - 1))
-                          for n in (1, 2)]
-        one, two = report["runs"]
-        report["ratio_2_to_1"] = round(two["per_second"] / one["per_second"], 2)
+        order = [1, 2, 2, 1][:2 * args.rounds] if args.rounds <= 2 else [1, 2] * args.rounds
+        report["runs"] = [cluster_throughput(pg, n, count, folder, 100 * i)
+                          for i, n in enumerate(order)]
+        rate = {n: statistics.mean(r["per_second"] for r in report["runs"] if r["workers"] == n)
+                for n in (1, 2)}
+        report["mean_per_second"] = {f"{n}_workers": round(v, 3) for n, v in rate.items()}
+        report["ratio_2_to_1"] = round(rate[2] / rate[1], 2)
         report["store"] = store_cost(pg, 50 if args.quick else 200)
     report["load_average_at_end"] = os.getloadavg()
     print(json.dumps(report, indent=2))
