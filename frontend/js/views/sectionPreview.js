@@ -41,7 +41,7 @@ function prepare(section, library) {
     section,
     regions,
     materials,
-    colours: materialColours(regions.map((r) => r.material)),
+    colours: materialColours([...regions.map((r) => materials.get(r.material) || { id: r.material })]),
     envColours: environmentColours(section.environments || []),
     outline: classifyOutline(section),
     box: boundsOf(regions.map((r) => r.polygon)),
