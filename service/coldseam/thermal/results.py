@@ -193,7 +193,8 @@ def interior_weightings(model: ThermalModel, run: Run) -> dict:
 
 
 def sensitivities(model, solution: LevelSolution, flanking, pair) -> list[dict]:
-    """∂L2D/∂ln λ and ∂ψ/∂ln λ per material (W/(m·K) per unit relative change of λ)."""
+    """∂L2D/∂ln λ and, when ψ is requested, ∂ψ/∂ln λ per material (W/(m·K) per unit
+    relative change of λ)."""
     run = solution.design
     a, b = pair
     groups = np.flatnonzero(model.boundary_env == a)
@@ -203,8 +204,10 @@ def sensitivities(model, solution: LevelSolution, flanking, pair) -> list[dict]:
                                          weight=run.unit[:, a])
     dl2d = -dflow  # L_ab = −Φ_a with θ_b = 1
     dsum_ul = sum((f.length * f.dU_dlnlambda(n) for f in flanking), np.zeros(n))
+    with_psi = model.request.psi is not None  # without a ψ request there is no ψ to move
     return [{"material": m.id, "dL2D_dlnlambda": float(dl2d[i]),
-             "dpsi_dlnlambda": float(dl2d[i] - dsum_ul[i])} for i, m in enumerate(model.materials)]
+             "dpsi_dlnlambda": float(dl2d[i] - dsum_ul[i]) if with_psi else None}
+            for i, m in enumerate(model.materials)]
 
 
 def energy_warnings(model, solution: LevelSolution) -> list[str]:
