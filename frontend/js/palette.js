@@ -7,8 +7,8 @@ export const MATERIAL_COLOURS = [
   "#b9a3c4", "#d9b8a0", "#9fb8a8", "#c2b9a6",
 ];
 
-const INTERIOR = ["#d0573a", "#b5432f", "#e07c50"];
-const EXTERIOR = ["#2a6f97", "#3f8fb5", "#1f4f6e"];
+export const INTERIOR = ["#d0573a", "#b5432f", "#e07c50"];
+export const EXTERIOR = ["#2a6f97", "#3f8fb5", "#1f4f6e"];
 
 export const ADIABATIC = "#4a555d";
 

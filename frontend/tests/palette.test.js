@@ -2,7 +2,7 @@ import { test } from "node:test";
 import assert from "node:assert/strict";
 import { readFileSync } from "node:fs";
 import { buildLut } from "../js/lib/colormap.js";
-import { fnv1a, MATERIAL_COLOURS, materialColours, materialSlot } from "../js/palette.js";
+import { EXTERIOR, fnv1a, INTERIOR, MATERIAL_COLOURS, materialColours, materialSlot } from "../js/palette.js";
 
 const shared = JSON.parse(readFileSync(new URL("./shared-colours.json", import.meta.url), "utf8"));
 
@@ -44,4 +44,9 @@ test("two materials of one section never share a colour, in any order", () => {
   for (const id of ["steel", "plaster", "eps"]) assert.equal(forward.get(id), backward.get(id), id);
   const many = materialColours(MATERIAL_COLOURS.map((_, i) => `m${i}`));
   assert.equal(new Set(many.values()).size, MATERIAL_COLOURS.length);
+});
+
+test("surfaces have the colours the picture gives them", () => {
+  assert.deepEqual(INTERIOR, shared.surface_colours.interior);
+  assert.deepEqual(EXTERIOR, shared.surface_colours.exterior);
 });

@@ -9,7 +9,12 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from coldseam.reporting.colours import lut8, thermal_colour_map
+from coldseam.reporting.colours import (
+    EXTERIOR_COLOURS,
+    INTERIOR_COLOURS,
+    lut8,
+    thermal_colour_map,
+)
 
 ROOT = Path(__file__).resolve().parents[2]
 SHARED = json.loads((ROOT / "frontend" / "tests" / "shared-colours.json").read_text())
@@ -37,3 +42,8 @@ def test_every_entry_equals_the_page_module():
                          check=True, timeout=60)
     page = np.array(json.loads(out.stdout)).reshape(-1, 3)
     assert np.array_equal(page, lut8())
+
+
+def test_surfaces_have_the_page_colours():
+    assert list(INTERIOR_COLOURS) == SHARED["surface_colours"]["interior"]
+    assert list(EXTERIOR_COLOURS) == SHARED["surface_colours"]["exterior"]

@@ -15,6 +15,11 @@ from functools import lru_cache
 import numpy as np
 from matplotlib.colors import ListedColormap
 
+#: Surface colours by side, as the page's (frontend/js/palette.js INTERIOR / EXTERIOR): ember
+#: for interior surfaces, frost for exterior ones, one after the other per environment.
+INTERIOR_COLOURS = ("#d0573a", "#b5432f", "#e07c50")
+EXTERIOR_COLOURS = ("#2a6f97", "#3f8fb5", "#1f4f6e")
+
 #: OKLCH control points [L, C, h°], as in colormap.js (CONTROL_LCH).
 CONTROL_LCH = ((0.27, 0.10, 285), (0.42, 0.12, 255), (0.56, 0.10, 215), (0.68, 0.11, 170),
                (0.80, 0.13, 125), (0.93, 0.11, 95))

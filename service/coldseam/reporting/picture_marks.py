@@ -10,13 +10,11 @@ from matplotlib import patheffects
 from matplotlib.collections import LineCollection
 from matplotlib.lines import Line2D
 
+from coldseam.reporting.colours import EXTERIOR_COLOURS, INTERIOR_COLOURS
 from coldseam.reporting.picture_labels import Occupied, mark_point, place_mark_label
 
-#: Surface colours chosen to stand out against both ends of the thermal map (violet, straw):
-#: warm hues for interior surfaces, cool and green ones for exterior surfaces.
-INTERIOR_COLOURS = ("#e41a1c", "#f781bf", "#ff7f00", "#a65628")
-EXTERIOR_COLOURS = ("#00d5e0", "#4daf4a", "#ffffff", "#984ea3")
-_HALO = [patheffects.withStroke(linewidth=3.4, foreground="black")]
+#: A white halo keeps the surface colours readable over both ends of the thermal map.
+_HALO = [patheffects.withStroke(linewidth=4.0, foreground="white")]
 
 
 def draw_outlines(ax, field: dict[str, Any], scale: float) -> None:
