@@ -30,7 +30,7 @@ function condensationRows(rows, c) {
   push(rows, "fRsi", c.fRsi, "");
   push(rows, "fRsi critical", c.fRsi_critical, "");
   push(rows, "verdict", c.verdict, "");
-  push(rows, "theta_si,min (condensation run)", c.min_temperature, "°C");
+  push(rows, "theta_si,min (fRsi run)", c.min_temperature, "°C");
 }
 
 function meshRows(rows, mesh) {

@@ -176,7 +176,7 @@ function minLegend(model) {
   const items = interiorMinima(model.field).map((m) => h("li", {},
     h("span", { class: `marker-key ${m.kind}`, "aria-hidden": "true" }),
     m.kind === "design" ? `Lowest surface temperature${m.env ? ` (${m.env})` : ""}, design run: ${fixed(m.temperature, 2)} °C`
-      : `Lowest interior surface temperature with the condensation Rsi: ${fixed(m.temperature, 2)} °C`));
+      : `Lowest interior surface temperature, fRsi run (Rsi for fRsi): ${fixed(m.temperature, 2)} °C`));
   return h("figcaption", { class: "legend" }, h("ul", { class: "legend-list" }, items,
     h("li", {}, h("span", { class: "swatch swatch-iso", "aria-hidden": "true" }),
       `isotherms every ${model.levels.length > 1 ? fixed(model.levels[1] - model.levels[0], 1) : "—"} K`)));

@@ -90,7 +90,7 @@ function condensationCard(result) {
   return card("Condensation and mould (ISO 13788)",
     h("p", { class: "verdict-line" }, verdictBadge(c, "verdict-detail"), ` fRsi ${fixed(c.fRsi, 3)} ${c.verdict === "pass" ? "≥" : "<"} ${fixed(c.fRsi_critical, 3)}`),
     pairs([...surfaces,
-      ["θsi,min at the condensation Rsi", fixed(c.min_temperature, 2), "°C"],
+      ["θsi,min, fRsi run", fixed(c.min_temperature, 2), "°C"],
       ["at", pointMm(c.at), ""],
       ["fRsi critical, mould (surface RH 80 %)", fixed(c.fRsi_critical_mould, 3), ""],
       ["fRsi critical, condensation", fixed(c.fRsi_critical_condensation, 3), ""],

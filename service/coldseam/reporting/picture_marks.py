@@ -77,7 +77,7 @@ def _colour(side: str, k: int) -> str:
 
 def draw_minima(ax, field: dict[str, Any], result: dict[str, Any], scale: float,
                 occupied: Occupied, renderer) -> list:
-    """Mark and label θsi,min of the heat-flow run (circle) and of the condensation run
+    """Mark and label θsi,min of the design run (circle) and of the fRsi run
     (diamond, with fRsi); one label where both fall on the same point, and no label over
     another (``picture_labels``). Legend handles."""
     marks = _minima(field, result)
@@ -98,10 +98,10 @@ def draw_minima(ax, field: dict[str, Any], result: dict[str, Any], scale: float,
                          zorder=7, bbox=LABEL_BOX, arrowprops=LABEL_ARROW)
     if any(m == "o" for _, _, m in marks):
         handles.append(Line2D([], [], marker="o", color="black", markerfacecolor="white",
-                              linestyle="none", label="θsi,min, heat-flow run"))
+                              linestyle="none", label="θsi,min, design run"))
     if any(m == "D" for _, _, m in marks):
         handles.append(Line2D([], [], marker="D", color="black", markerfacecolor="white",
-                              linestyle="none", label="θsi,min, condensation run"))
+                              linestyle="none", label="θsi,min, fRsi run"))
     return handles
 
 
@@ -114,13 +114,13 @@ def _minima(field: dict[str, Any], result: dict[str, Any]) -> list[tuple[list, s
               and str(env) not in known}
     for env, block in minima.items():
         name = f", {escape_math(str(env)[:40])}" if len(minima) > 1 else ""
-        text = f"θsi,min {block['temperature']:.2f} °C (heat-flow run{name})"
+        text = f"θsi,min {block['temperature']:.2f} °C (design run{name})"
         marks.append((block["at"], text, "o"))
     condensation = field.get("condensation_min")
     if _valid(condensation):
         block = result.get("condensation") if isinstance(result.get("condensation"), dict) else {}
         rsi = block.get("interior_surface_resistance")
-        run = f"at Rsi {rsi:g}" if _num(rsi) else "(condensation run)"
+        run = f"at Rsi {rsi:g}" if _num(rsi) else "(fRsi run)"
         text = f"θsi,min {condensation['temperature']:.2f} °C {run}"
         if _num(block.get("fRsi")):
             text += f", fRsi {block['fRsi']:.3f}"

@@ -105,7 +105,7 @@ def _summary(result: dict, unit: str) -> Html:
          if "L2D" in result else None),
         ("ψ", (unbounded if singular else number(psi.get("value"), 3, "W/(m·K)"))
          if psi else None),
-        *[(f"θsi,min ({env}), heat-flow run",
+        *[(f"θsi,min ({env}), design run",
            f"{number(as_dict(b).get('min_temperature'), 2, '°C')} at "
            f"{point(as_dict(b).get('at'), unit)}") for env, b in interior],
         ("fRsi", _frsi_line(cond) if cond else None),

@@ -59,7 +59,7 @@ def _surfaces(surfaces: dict, unit: str) -> Html:
              point(b.get("at"), unit), number(b.get("max_temperature"), 2, "°C")]
             for env, b in ((e, as_dict(v)) for e, v in surfaces.items())]
     return table(["Surface", "Side", "Minimum θs", "at", "Maximum θs"], rows,
-                 "Surface temperatures, heat-flow run") if rows else Html("")
+                 "Surface temperatures, design run") if rows else Html("")
 
 
 def _probes(probes: dict) -> Html:
@@ -114,7 +114,7 @@ def condensation_block(result: dict, unit: str) -> Html:
         ("fRsi,critical", number(c.get("fRsi_critical"), 3)),
         ("Verdict", Html(verdict_badge(c) + esc(_margin(c)))),
         ("Criterion", c.get("criterion")),
-        ("θsi,min (condensation run)", number(c.get("min_temperature"), 2, "°C")),
+        ("θsi,min (fRsi run)", number(c.get("min_temperature"), 2, "°C")),
         ("at", point(c.get("at"), unit) if c.get("at") is not None else None),
         ("Interior surface resistance", number(c.get("interior_surface_resistance"), 2,
                                                "m²·K/W")),
