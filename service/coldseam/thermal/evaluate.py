@@ -158,6 +158,10 @@ def _without_meaningless(out: dict, meaning: singular.Meaning, levels, model) ->
             out["psi"].update(value=None, L2D=None, not_given=reason)
         out.pop("sensitivities", None)
         out["mesh"] = _temperature_certificate(out["mesh"], levels, model, meaning)
+        if not model.section.probes and levels[-1].design_min_temperature is None and \
+                levels[-1].min_temperature is None:
+            notes.append("no temperature to certify the mesh on: add probes (section.probes) "
+                         "where the temperatures are wanted")
     if meaning.frsi and out.get("condensation"):
         reason = singular.frsi_reason(meaning.frsi)
         notes.append("no fRsi: " + reason)
