@@ -90,7 +90,7 @@ def psi_block(result: dict) -> Html:
 
 def _layers(layers: Any) -> Html:
     items = [f"{esc(layer.get('material'))}: d = {esc(number(layer.get('thickness'), 4))} m, "
-             f"λ = {esc(_lam(layer.get('conductivity')))}"
+             f"λ = {esc(_lam(layer.get('conductivity')))} W/(m·K)"
              for layer in map(as_dict, as_list(layers))]
     return Html("<br>".join(items))
 
