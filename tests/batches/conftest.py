@@ -4,19 +4,17 @@ the real one), and a helper that waits for a batch to finish."""
 from __future__ import annotations
 
 import os
-import time
 from collections.abc import Callable, Iterator
 from contextlib import contextmanager
 from pathlib import Path
 from typing import Any
 
 import pytest
+from batch_support import FAKE
 from fastapi.testclient import TestClient
 
 from coldseam.api.main import create_app
 from coldseam.settings import Settings
-
-FAKE = "batch_engines:evaluate"
 
 
 @pytest.fixture(autouse=True)
@@ -44,27 +42,3 @@ def client_for(tmp_path: Path) -> Callable[..., Any]:
 def client(client_for: Callable[..., Any]) -> Iterator[TestClient]:
     with client_for() as test_client:
         yield test_client
-
-
-def finished(client: TestClient, batch_id: str, timeout: float = 60.0,
-             **headers: str) -> dict[str, Any]:
-    """The batch once every item has finished."""
-    deadline = time.monotonic() + timeout
-    while time.monotonic() < deadline:
-        body = client.get(f"/api/v1/batches/{batch_id}", headers=headers).json()
-        if body["status"] in ("done", "failed"):
-            return body
-        time.sleep(0.05)
-    raise AssertionError(f"batch {batch_id} did not finish in {timeout} s: {body['counts']}")
-
-
-REPO = Path(__file__).resolve().parents[2]
-
-
-def wall(**section_changes: Any) -> dict[str, Any]:
-    """The example wall request (examples/wall-1d.json) with some section fields changed."""
-    import json
-
-    request = json.loads((REPO / "examples" / "wall-1d.json").read_text())
-    request["section"].update(section_changes)
-    return request

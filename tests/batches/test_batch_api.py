@@ -6,7 +6,7 @@ from __future__ import annotations
 import math
 import time
 
-from conftest import finished
+from batch_support import finished
 
 from coldseam.api.store import storage_key
 
@@ -100,7 +100,7 @@ def test_a_failed_item_carries_its_error_and_stops_nothing(client):
 
 
 def test_an_engine_failure_fails_its_item_only(client):
-    from conftest import wall
+    from batch_support import wall
 
     request = wall(description="fake: meshing-failed")
     body = finished(client, _post(client, {"items": [{"id": "bad", "request": request},
@@ -213,7 +213,7 @@ def test_batches_belong_to_the_key_that_made_them(client_for):
 
 
 def test_a_batch_never_floods_the_queue_and_single_evaluations_get_through(client_for):
-    from conftest import wall
+    from batch_support import wall
 
     slow = [{"id": str(n), "request": wall(name=f"slow {n}", description="fake: sleep=0.2")}
             for n in range(12)]

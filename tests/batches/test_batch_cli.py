@@ -12,7 +12,7 @@ import time
 
 import pytest
 import uvicorn
-from conftest import FAKE
+from batch_support import FAKE
 from openpyxl import load_workbook
 
 from coldseam.api.main import create_app

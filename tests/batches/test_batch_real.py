@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 import pytest
-from conftest import finished
+from batch_support import finished
 
 from coldseam import DEFAULT_ENGINE
 

@@ -6,7 +6,7 @@ from __future__ import annotations
 import csv
 import io
 
-from conftest import finished
+from batch_support import finished
 from openpyxl import load_workbook
 
 from coldseam import CAUTION
