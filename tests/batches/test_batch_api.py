@@ -237,3 +237,18 @@ def test_the_item_keys_are_the_evaluation_keys_of_the_owner(client):
     store = client.app.state.evaluations.store
     for item in body["items"]:
         assert store.get(storage_key("", item["evaluation_id"])).status == "done"
+
+
+def test_items_resumed_under_a_lower_node_cap_are_filed_under_their_new_id(client_for):
+    body = {"items": [{"id": "J6", "template": "eaves"}]}
+    with client_for(prestart_workers=False) as client:
+        runner = client.app.state.batches
+        runner.stop()  # nothing runs: the item stays queued, as when a server is killed
+        batch_id = client.post("/api/v1/batches", json=body).json()["id"]
+        made = client.get(f"/api/v1/batches/{batch_id}").json()["items"][0]["evaluation_id"]
+    with client_for(max_nodes=5000) as client:  # restarted with a lower cap: another request
+        item = finished(client, batch_id)["items"][0]
+        assert item["status"] == "done" and item["evaluation_id"] != made
+        evaluation = client.get(f"/api/v1/evaluations/{item['evaluation_id']}").json()
+        assert evaluation["status"] == "done" and evaluation["psi"]["value"] == item["psi"]
+        assert client.get(f"/api/v1/evaluations/{made}").status_code == 404
