@@ -186,6 +186,17 @@ def interior_weightings(model: ThermalModel, run: Run) -> dict:
     return out
 
 
+def materials_block(model) -> list[dict]:
+    """The section's materials with λ and source; a cavity material's λeq is per cavity
+    (listed under ``cavities``), so its conductivity here is None."""
+    out = []
+    for section_material, use in zip(model.section.materials, model.materials, strict=False):
+        cavity = section_material.cavity is not None
+        out.append({"id": use.id, "conductivity": None if cavity else list(use.conductivity),
+                    "source": use.source, **({"cavity": True} if cavity else {})})
+    return out
+
+
 def sensitivities(model, solution: LevelSolution, flanking, pair) -> list[dict]:
     """∂L2D/∂ln λ and ∂ψ/∂ln λ per material (W/(m·K) per unit relative change of λ)."""
     run = solution.design
