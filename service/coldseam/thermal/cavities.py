@@ -44,10 +44,12 @@ def apply_cavities(model) -> list[dict]:
     segments = partition.segments()
     groups = _groups(partition, segments, kinds)
     axis, default_direction = heat_flow_axis(model)
+    placed = sorted(((_regions_of(section, partition, g), g) for g in groups),
+                    key=lambda rg: (rg[0], rg[1].polygon.bounds))
+    air = {k for k, f in enumerate(partition.faces) if f.material in kinds}
     entries = []
-    for n, group in enumerate(groups, start=1):
-        regions = _regions_of(section, group)
-        _check_closed(model, segments, group, kinds, regions)
+    for n, (regions, group) in enumerate(placed, start=1):
+        _check_closed(model, segments, group, air, regions)
         entries.append(_assign(model, group, n, regions, axis, default_direction))
     _settle_placeholders(model, kinds, entries)
     return entries
@@ -87,24 +89,22 @@ def _groups(partition, segments, kinds) -> list[CavityGroup]:
     return groups
 
 
-def _regions_of(section, group: CavityGroup) -> list[int]:
-    """Indices of the regions whose visible part makes up the cavity (top region wins)."""
+def _regions_of(section, partition, group: CavityGroup) -> list[int]:
+    """Indices of the regions whose visible part makes up the cavity (the top region wins)."""
     scale = section.scale
-    found: list[int] = []
-    for part in getattr(group.polygon, "geoms", [group.polygon]):
-        inside = part.representative_point()
-        for i in reversed(range(len(section.regions))):
-            region = section.regions[i]
-            shape = Polygon(np.asarray(region.polygon, float) * scale,
-                            [np.asarray(h, float) * scale for h in region.holes])
-            if shape.buffer(0).covers(inside):
-                if i not in found:
-                    found.append(i)
-                break
+    shapes = [Polygon(np.asarray(r.polygon, float) * scale,
+                      [np.asarray(h, float) * scale for h in r.holes]).buffer(0)
+              for r in section.regions]
+    found: set[int] = set()
+    for k in group.faces:
+        inside = face_polygon(partition, partition.faces[k]).representative_point()
+        top = [i for i, shape in enumerate(shapes) if shape.covers(inside)]
+        if top:
+            found.add(top[-1])
     return sorted(found) or [0]
 
 
-def _check_closed(model, segments, group: CavityGroup, kinds, regions: list[int]) -> None:
+def _check_closed(model, segments, group: CavityGroup, air: set[int], regions: list[int]) -> None:
     """A cavity must lie between solids: not exposed to an environment, and with at least one
     solid neighbour (an adiabatic cut-off or symmetry line may cut through it)."""
     section, partition = model.section, model.classified.partition
@@ -125,7 +125,7 @@ def _check_closed(model, segments, group: CavityGroup, kinds, regions: list[int]
                 f"{label} is an air cavity but lies open to environment '{env}' near "
                 f"{where(section, x, y)}: a cavity must be closed by solids (draw the frame "
                 "or wall around it, or describe an open cavity as 'well_ventilated')", pointer)
-        solid_neighbour |= any(partition.faces[f].material not in kinds for f in others)
+        solid_neighbour |= any(f not in air for f in others)
     if not solid_neighbour:
         raise InvalidSection(f"{label} is an air cavity with no solid around it: a cavity "
                              "is air enclosed by solid material", pointer)

@@ -13,6 +13,7 @@ from coldseam.schema.section import Section
 from coldseam.thermal.cavities import apply_cavities
 from coldseam.thermal.cavity_formula import C1
 from coldseam.thermal.cavity_split import split_narrowings
+from coldseam.thermal.cavity_vent import open_ventilated
 
 
 @dataclass
@@ -78,8 +79,11 @@ def prepare(request: EvaluationRequest) -> ThermalModel:
     materials = resolve_materials(section)
     partition = build_partition(section)
     cavity_kinds = {k for k, m in enumerate(section.materials) if m.cavity is not None}
+    ventilated: list[dict] = []
     if cavity_kinds:
         split_narrowings(partition, cavity_kinds)
+        section, ventilated = open_ventilated(section, partition)
+        request = request.model_copy(update={"section": section})
     classified = classify(section, partition)
     env_index = {e.id: k for k, e in enumerate(section.environments)}
     default_rsi = (request.condensation.interior_surface_resistance
@@ -94,5 +98,5 @@ def prepare(request: EvaluationRequest) -> ThermalModel:
     model = ThermalModel(request, classified, materials,
                          np.array([e.temperature for e in section.environments], float),
                          interior, boundary_env, design, condensation)
-    model.cavities = apply_cavities(model)
+    model.cavities = apply_cavities(model) + ventilated
     return model
