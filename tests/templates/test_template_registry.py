@@ -11,9 +11,10 @@ from coldseam.templates import build, get_template, list_templates
 TEMPLATE_IDS = [t.id for t in list_templates()]
 
 
-def test_seven_templates_with_unique_ids():
+def test_nine_templates_with_unique_ids():
     assert TEMPLATE_IDS == ["wall_corner", "floor_slab", "balcony", "window_reveal", "eaves",
-                            "ground_floor", "framed_wall"]
+                            "ground_floor", "framed_wall", "window_installation",
+                            "glazing_edge"]
 
 
 @pytest.mark.parametrize("template_id", TEMPLATE_IDS)

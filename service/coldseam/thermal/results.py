@@ -98,11 +98,25 @@ def psi_block(model, solution, flanking: list[FlankingU], pair) -> dict | None:
     l2d = float(0.5 * (coupling[pair] + coupling[pair[::-1]]))
     sum_ul = sum(f.u_value * f.length for f in flanking)
     ids = model.env_ids
-    return {
+    out = {
         "value": l2d - sum_ul, "L2D": l2d, "sum_UL": sum_ul, "dimensions": psi.dimensions,
         "environments": [ids[pair[0]], ids[pair[1]]],
         "flanking": [_flanking_dict(model, f) for f in flanking],
     }
+    if psi.frame is not None:
+        out["frame"] = frame_block(psi.frame, l2d, model.section.scale)
+    return out
+
+
+def frame_block(frame, l2d: float, scale: float) -> dict:
+    """U_f = (L2D − U_p·b_p) / b_f, W/(m²·K) (ISO 10077-2 calibration panel); widths in m."""
+    panel_width, frame_width = frame.panel.width * scale, frame.frame_width * scale
+    panel_flow = frame.panel.u_value * panel_width
+    return {"u_frame": (l2d - panel_flow) / frame_width, "L2D": l2d,
+            "frame_width": frame_width, "panel": {"width": panel_width,
+                                                  "u_value": frame.panel.u_value,
+                                                  "UL": panel_flow},
+            "source": "U_f = (L2D − U_p·b_p)/b_f, ISO 10077-2 calibration-panel method"}
 
 
 def _flanking_dict(model, f: FlankingU) -> dict:
