@@ -22,3 +22,11 @@ def test_schedule_rows_build_valid_requests(row):
     stored = json.loads((DEMO / "sections" / name).read_text())
     assert stored == json.loads(json.dumps(request))
     assert float(row["length_m"]) > 0
+
+
+def test_glazing_edge_section_is_the_template_build():
+    """The demo's glazing edge (not a schedule row: ψ_g belongs in U_w) is today's build."""
+    stored = json.loads((DEMO / "sections" / "w1-glazing-edge.json").read_text())
+    request = build("glazing_edge", {"spacer": "warm_edge"})
+    parse_request(request)
+    assert stored == json.loads(json.dumps(request))
