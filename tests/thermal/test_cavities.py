@@ -253,3 +253,19 @@ def test_result_fields_follow_the_contract():
                 "equivalent_conductivity", "convection", "radiation"} <= entry.keys()
     air = next(m for m in result["materials"] if m["id"] == "air")
     assert air["conductivity"] is None and air["cavity"] is True
+
+
+def test_frame_u_value_from_calibration_panel():
+    """psi.frame: U_f = (L2D − U_p·b_p)/b_f (ISO 10077-2 calibration-panel method), widths
+    given in the section unit, on the worked example of examples/window-frame-uf."""
+    import json
+    from pathlib import Path
+
+    example = Path(__file__).resolve().parents[2] / "examples" / "window-frame-uf"
+    request = json.loads((example / "request.json").read_text())
+    result = run(request)
+    frame = result["psi"]["frame"]
+    u_p = 1 / (0.04 + 0.024 / 0.035 + 0.13)  # ISO 6946: U = 1/(Rse + d/λ + Rsi)
+    assert frame["panel"]["u_value"] == pytest.approx(u_p, abs=1e-6)
+    assert frame["u_frame"] == pytest.approx((result["L2D"] - u_p * 0.190) / 0.110, rel=1e-5)
+    assert len(result["cavities"]) == 10
