@@ -68,6 +68,10 @@ class Material(_Strict):
 
     @model_validator(mode="after")
     def _has_conductivity(self) -> Material:
+        if self.cavity is not None and any(getattr(self, name, None) is not None
+                                           for name in ("density", "specific_heat")):
+            raise ValueError(f"material '{self.id}' is an air cavity: its heat capacity is "
+                             "zero, so it takes no density or specific_heat")
         if self.cavity is not None and (self.conductivity is not None or self.library):
             raise ValueError(f"material '{self.id}' is a cavity: give either `cavity` or a "
                              "conductivity/library id, not both (λeq of a cavity is computed)")

@@ -44,7 +44,8 @@ def apply_cavities(model) -> list[dict]:
     segments = partition.segments()
     groups = _groups(partition, segments, kinds)
     axis, default_direction = heat_flow_axis(model)
-    placed = sorted(((_regions_of(section, partition, g), g) for g in groups),
+    shapes = _region_shapes(section)
+    placed = sorted(((_regions_of(shapes, partition, g), g) for g in groups),
                     key=lambda rg: (rg[0], rg[1].polygon.bounds))
     air = {k for k, f in enumerate(partition.faces) if f.material in kinds}
     entries = []
@@ -89,18 +90,22 @@ def _groups(partition, segments, kinds) -> list[CavityGroup]:
     return groups
 
 
-def _regions_of(section, partition, group: CavityGroup) -> list[int]:
-    """Indices of the regions whose visible part makes up the cavity (the top region wins)."""
+def _region_shapes(section) -> np.ndarray:
+    """Every region as a shapely polygon in metres (valid: the partition checked them)."""
     scale = section.scale
-    shapes = [Polygon(np.asarray(r.polygon, float) * scale,
-                      [np.asarray(h, float) * scale for h in r.holes]).buffer(0)
-              for r in section.regions]
+    return np.array([Polygon(np.asarray(r.polygon, float) * scale,
+                             [np.asarray(h, float) * scale for h in r.holes])
+                     for r in section.regions], dtype=object)
+
+
+def _regions_of(shapes: np.ndarray, partition, group: CavityGroup) -> list[int]:
+    """Indices of the regions whose visible part makes up the cavity (the top region wins)."""
     found: set[int] = set()
     for k in group.faces:
         inside = face_polygon(partition, partition.faces[k]).representative_point()
-        top = [i for i, shape in enumerate(shapes) if shape.covers(inside)]
-        if top:
-            found.add(top[-1])
+        top = np.flatnonzero(shapely.covers(shapes, inside))
+        if len(top):
+            found.add(int(top[-1]))
     return sorted(found) or [0]
 
 
@@ -177,7 +182,8 @@ def _assign(model, group: CavityGroup, n: int, regions: list[int], axis: int,
     lam = coefficients.conductivity
     index = len(model.materials)
     model.materials.append(MaterialUse(f"{material.id} [cavity {n}]", (lam, lam),
-                                       f"cavity {n} of '{material.id}': λeq, ISO 10077-2"))
+                                       f"cavity {n} of '{material.id}': λeq, ISO 10077-2",
+                                       cavity=True))
     for k in group.faces:
         model.classified.partition.faces[k].material = index
     x, y = group.polygon.representative_point().coords[0]

@@ -21,6 +21,8 @@ class MaterialUse:
     id: str
     conductivity: tuple[float, float]  # [λx, λy] W/(m·K)
     source: str
+    #: An air cavity (a cavity material, or one cavity's own λeq entry): no heat capacity.
+    cavity: bool = False
 
 
 @dataclass
@@ -61,7 +63,7 @@ def resolve_materials(section: Section) -> list[MaterialUse]:
         resolved = from_library(section)
     for m in section.materials:
         if m.cavity is not None:  # λeq per cavity: see coldseam.thermal.cavities
-            uses.append(MaterialUse(m.id, (C1, C1), "air cavity"))
+            uses.append(MaterialUse(m.id, (C1, C1), "air cavity", cavity=True))
         elif m.conductivity is not None:
             lam = m.conductivity if isinstance(m.conductivity, tuple) else (m.conductivity,) * 2
             source = "given in the request"
