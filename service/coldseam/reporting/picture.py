@@ -25,6 +25,7 @@ from matplotlib.figure import Figure
 from matplotlib.tri import Triangulation
 
 from coldseam import CAUTION
+from coldseam.reporting.picture_cavities import draw_cavities
 from coldseam.reporting.picture_marks import (
     draw_boundaries,
     draw_minima,
@@ -85,7 +86,7 @@ def draw(field: dict[str, Any], result: dict[str, Any]) -> Figure:
     tri = Triangulation(points[:, 0] * scale, points[:, 1] * scale, triangles)
     _draw_temperature(figure.add_axes(layout.colour_bar), ax, tri, theta)
     draw_outlines(ax, field, scale)
-    handles = draw_boundaries(ax, field, scale)
+    handles = draw_boundaries(ax, field, scale) + draw_cavities(ax, field, scale)
     _frame(ax, unit, low * scale, high * scale)
     handles += draw_minima(ax, field, result, scale)
     _texts(figure, layout, result, handles)

@@ -192,7 +192,14 @@ def _assign(model, group: CavityGroup, n: int, regions: list[int], axis: int,
             "equivalent_conductivity": lam, "convection": coefficients.convection,
             "radiation": coefficients.radiation, "ventilation": cavity.ventilation,
             "emissivity": [eps1, eps2], "area": group.polygon.area, "at": [x, y],
-            "material_index": index}
+            "material_index": index, "_rings": rings_of(group.polygon)}
+
+
+def rings_of(polygon) -> list[list[list[float]]]:
+    """Every ring of a (multi)polygon, metres, for drawing."""
+    return [np.round(np.asarray(ring.coords), 7).tolist()
+            for part in getattr(polygon, "geoms", [polygon])
+            for ring in [part.exterior, *part.interiors]]
 
 
 def _settle_placeholders(model, kinds, entries: list[dict]) -> None:

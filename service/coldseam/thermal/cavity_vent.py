@@ -42,9 +42,16 @@ def open_ventilated(section: Section, partition: Partition) -> tuple[Section, li
         entries.append({"material": section.materials[face.material].id,
                         "ventilation": "well_ventilated", "exposed_to": boundary.environment,
                         "surface_resistance": boundary.surface_resistance,
-                        "equivalent_conductivity": None, "area": polygon.area, "at": [x, y]})
+                        "equivalent_conductivity": None, "area": polygon.area, "at": [x, y],
+                        "region": _region_index(section, face.material),
+                        "_rings": [np.round(r, 7).tolist() for r in rings]})
     partition.faces = [f for k, f in enumerate(partition.faces) if k not in set(faces)]
     return section.model_copy(update={"boundaries": [*section.boundaries, *extra]}), entries
+
+
+def _region_index(section: Section, material: int) -> int:
+    name = section.materials[material].id
+    return next(i for i, r in enumerate(section.regions) if r.material == name)
 
 
 def _opening(section: Section, polygon: Polygon, paths, tol: float, material: int) -> Boundary:
@@ -52,8 +59,7 @@ def _opening(section: Section, polygon: Polygon, paths, tol: float, material: in
     touching = [i for i, path in enumerate(paths)
                 if shapely.distance(path, polygon.exterior) <= tol]
     if not touching:
-        name = section.materials[material].id
-        index = next(i for i, r in enumerate(section.regions) if r.material == name)
+        name, index = section.materials[material].id, _region_index(section, material)
         raise InvalidSection(
             f"region {index} ({name}) is a well-ventilated cavity but opens onto no exposed "
             "surface: its outline must meet a boundary path (the environment it is open to); "

@@ -129,7 +129,7 @@ def _result(model, flanking, pair, levels, solution: LevelSolution, warnings) ->
     warnings = warnings + results.energy_warnings(model, solution)
     warnings += results.cutoff_warnings(model, solution)
     out["materials"] = results.materials_block(model)
-    out["cavities"] = [{k: v for k, v in c.items() if k != "material_index"}
+    out["cavities"] = [{k: v for k, v in c.items() if k != "material_index" and k[0] != "_"}
                        for c in model.cavities]
     out["warnings"] = warnings
     out["caution"] = CAUTION
