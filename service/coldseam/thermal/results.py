@@ -222,8 +222,10 @@ def sensitivities(model, solution: LevelSolution, flanking, pair) -> list[dict]:
                                          weight=run.unit[:, a])
     dl2d = -dflow  # L_ab = −Φ_a with θ_b = 1
     dsum_ul = sum((f.length * f.dU_dlnlambda(n) for f in flanking), np.zeros(n))
+    cavity_bases = {k for k, m in enumerate(model.section.materials) if m.cavity is not None}
     return [{"material": m.id, "dL2D_dlnlambda": float(dl2d[i]),
-             "dpsi_dlnlambda": float(dl2d[i] - dsum_ul[i])} for i, m in enumerate(model.materials)]
+             "dpsi_dlnlambda": float(dl2d[i] - dsum_ul[i])} for i, m in enumerate(model.materials)
+            if i not in cavity_bases]  # a cavity material's λ is per cavity, listed as such
 
 
 def energy_warnings(model, solution: LevelSolution) -> list[str]:
