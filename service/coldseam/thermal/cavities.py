@@ -56,6 +56,24 @@ def apply_cavities(model) -> list[dict]:
     return entries
 
 
+def check_cavity_regions(section) -> None:
+    """A cavity region whose outline encloses no area (zero width) is refused with words
+    about the cavity, before the general polygon checks."""
+    for i, region in enumerate(section.regions):
+        material = next(m for m in section.materials if m.id == region.material)
+        if material.cavity is None:
+            continue
+        xy = np.asarray(region.polygon, float)
+        span = float(np.ptp(xy, axis=0).max()) if len(xy) else 0.0
+        area = 0.5 * abs(float(np.dot(xy[:, 0], np.roll(xy[:, 1], 1))
+                               - np.dot(xy[:, 1], np.roll(xy[:, 0], 1))))
+        if area <= 1e-12 * max(span, 1e-300) ** 2:
+            raise InvalidSection(
+                f"region {i} ({material.id}) is an air cavity of zero width: its outline "
+                "encloses no area (a cavity needs a width and a thickness)",
+                f"/section/regions/{i}/polygon")
+
+
 def face_polygon(partition, face) -> Polygon:
     rings = [partition.points[r] for r in face.rings]
     return Polygon(rings[0], rings[1:])

@@ -10,7 +10,7 @@ from coldseam.geometry.outline import Classified, classify
 from coldseam.geometry.partition import build_partition
 from coldseam.schema.evaluation import EvaluationRequest
 from coldseam.schema.section import Section
-from coldseam.thermal.cavities import apply_cavities
+from coldseam.thermal.cavities import apply_cavities, check_cavity_regions
 from coldseam.thermal.cavity_formula import C1
 from coldseam.thermal.cavity_split import split_narrowings
 from coldseam.thermal.cavity_vent import open_ventilated
@@ -79,6 +79,7 @@ def resolve_materials(section: Section) -> list[MaterialUse]:
 def prepare(request: EvaluationRequest) -> ThermalModel:
     section = request.section
     materials = resolve_materials(section)
+    check_cavity_regions(section)
     partition = build_partition(section)
     cavity_kinds = {k for k, m in enumerate(section.materials) if m.cavity is not None}
     ventilated: list[dict] = []
