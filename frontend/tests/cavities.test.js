@@ -1,6 +1,6 @@
 import { test } from "node:test";
 import assert from "node:assert/strict";
-import { HATCH_ID, cavityText, hatchSpec, materialText } from "../js/lib/cavities.js";
+import { HATCH_ID, cavityRows, cavityText, hatchSpec, materialText } from "../js/lib/cavities.js";
 
 // A cavity as the engine's field document gives it (16 × 16 mm chamber, λeq by hand in
 // tests/thermal/test_cavities.py).
@@ -32,4 +32,11 @@ test("the hatch is one pattern of diagonal lines referenced by its id", () => {
   assert.match(attrs.patternTransform, /^rotate\(\d+\)$/);
   assert.equal(children.length, 1);
   assert.equal(children[0][0], "line");
+});
+
+test("cavity table rows: region, b and d in mm, heat flow, λeq; open cavities say so", () => {
+  const rows = cavityRows([CAVITY, { material: "groove", region: 3, ventilation: "well_ventilated",
+    equivalent_conductivity: null, exposed_to: "outside" }]);
+  assert.deepEqual(rows[0], ["air (region 1)", "16.0", "16.0", "horizontal", "0.07551"]);
+  assert.deepEqual(rows[1], ["groove (region 3)", "—", "—", "well ventilated", "open to outside"]);
 });

@@ -32,5 +32,8 @@ def test_cavities_hatched_with_lambda_on_hover(server, page_factory):
     readout = page.get_by_test_id("field-readout").inner_text()
     assert f"λeq {entry['equivalent_conductivity']:.4g}" in readout, readout
     assert f"(region {region})" in readout
+    rows = page.locator("[data-testid=cavity-table] tbody tr")
+    assert rows.count() == len(cavities)
+    assert f"{cavities[0]['equivalent_conductivity']:.4g}" in rows.first.inner_text()
     shot(page, "cavities-1280")
     assert clean_problems(page) == []

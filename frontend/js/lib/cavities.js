@@ -39,3 +39,15 @@ export function materialText(mat) {
   const [lx, ly] = mat.conductivity || [];
   return `${mat.id}, λ ${lx === ly ? lx : `${lx} / ${ly}`} W/(m·K)`;
 }
+
+/** Table rows for the result's `cavities`: [label, b mm, d mm, heat flow, λeq]. */
+export function cavityRows(cavities) {
+  return (cavities || []).map((c) => [
+    `${c.material ?? "cavity"}${Number.isInteger(c.region) ? ` (region ${c.region})` : ""}`,
+    Number.isFinite(c.width) ? fixed(c.width * 1000, 1) : "—",
+    Number.isFinite(c.thickness) ? fixed(c.thickness * 1000, 1) : "—",
+    c.heat_flow_direction || VENTILATION[c.ventilation] || "—",
+    c.equivalent_conductivity === null || c.equivalent_conductivity === undefined
+      ? `open to ${c.exposed_to ?? "—"}` : sig(c.equivalent_conductivity, 4),
+  ]);
+}
