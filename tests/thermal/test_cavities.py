@@ -269,3 +269,28 @@ def test_frame_u_value_from_calibration_panel():
     assert frame["panel"]["u_value"] == pytest.approx(u_p, abs=1e-6)
     assert frame["u_frame"] == pytest.approx((result["L2D"] - u_p * 0.190) / 0.110, rel=1e-5)
     assert len(result["cavities"]) == 10
+
+
+def test_irregular_cavity_takes_the_equivalent_rectangle():
+    """An L-shaped cavity: the rectangle of its area with its bounding box's aspect ratio
+    (ISO 10077-2 [recalled from memory]): d = √(A·d0/b0), b = √(A·b0/d0)."""
+    frame = cavity_frame(1, 1, pitch=40.0)  # block 44 × 44 mm
+    frame["regions"][1]["polygon"] = [[4, 4], [40, 4], [40, 14], [14, 14], [14, 40], [4, 40]]
+    (entry,) = run(frame)["cavities"]
+    area, d0, b0 = (36 * 10 + 10 * 26) * 1e-6, 0.036, 0.036
+    assert entry["area"] == pytest.approx(area, rel=1e-9)
+    assert entry["thickness"] == pytest.approx(math.sqrt(area * d0 / b0), rel=1e-9)
+    assert entry["width"] == pytest.approx(math.sqrt(area * b0 / d0), rel=1e-9)
+    assert entry["equivalent_conductivity"] == pytest.approx(lambda_eq_independent(
+        entry["thickness"], entry["width"], "horizontal"), rel=1e-12)
+
+
+def test_given_heat_flow_direction_wins():
+    """A plan section (a jamb) drawn with the exterior below: d stays along the flow (y), the
+    direction given as horizontal."""
+    wall = layered_wall([("brick", 0.77, 100.0), ("air", 1.0, 30.0), ("block", 0.2, 100.0)],
+                        vertical=True)
+    wall["materials"][1] = {"id": "air", "cavity": {"heat_flow_direction": "horizontal"}}
+    (entry,) = run(wall)["cavities"]
+    assert entry["heat_flow_direction"] == "horizontal"
+    assert entry["thickness"] == pytest.approx(0.03) and entry["width"] == pytest.approx(1.0)
