@@ -294,3 +294,19 @@ def test_given_heat_flow_direction_wins():
     (entry,) = run(wall)["cavities"]
     assert entry["heat_flow_direction"] == "horizontal"
     assert entry["thickness"] == pytest.approx(0.03) and entry["width"] == pytest.approx(1.0)
+
+
+def test_webs_short_of_the_walls_leave_separate_chambers():
+    """A 56 mm chamber with five webs drawn inside it, each 1 mm short of the top and bottom:
+    six chambers joined only through 1 mm slits, so six cavities (ISO 10077-2 slit rule
+    [from memory]); their areas add up to the air drawn."""
+    frame = cavity_frame(1, 1, pitch=60.0)
+    frame["regions"][1]["polygon"] = [[4, 4], [60, 4], [60, 60], [4, 60]]
+    for k in range(5):
+        x = 10 + k * 10
+        frame["regions"].append({"material": "pvc",
+                                 "polygon": [[x, 5], [x + 2, 5], [x + 2, 59], [x, 59]]})
+    cavities = run(frame)["cavities"]
+    assert len(cavities) == 6 and {c["region"] for c in cavities} == {1}
+    assert sum(c["area"] for c in cavities) == pytest.approx((56 * 56 - 5 * 2 * 54) * 1e-6,
+                                                             rel=1e-9)

@@ -80,7 +80,8 @@ def face_polygon(partition, face) -> Polygon:
 
 
 def _groups(partition, segments, kinds) -> list[CavityGroup]:
-    """Faces of one cavity material joined across shared edges longer than SLIT."""
+    """Faces of one cavity material joined where one connected opening between two of
+    them is longer than SLIT (separate openings of at most SLIT each keep them apart)."""
     parent = {k: k for k, f in enumerate(partition.faces) if f.material in kinds}
 
     def root(k: int) -> int:
@@ -88,14 +89,15 @@ def _groups(partition, segments, kinds) -> list[CavityGroup]:
             k = parent[k]
         return k
 
-    shared: dict[tuple[int, int], float] = {}
+    shared: dict[tuple[int, int], list] = {}
     for (a, b), faces in segments.items():
         if len(faces) == 2 and faces[0] in parent and faces[1] in parent and \
                 partition.faces[faces[0]].material == partition.faces[faces[1]].material:
-            pair = (min(faces), max(faces))
-            length = float(np.linalg.norm(partition.points[a] - partition.points[b]))
-            shared[pair] = shared.get(pair, 0.0) + length
-    for (f, g), length in shared.items():
+            shared.setdefault((min(faces), max(faces)), []).append(
+                partition.points[[a, b]].tolist())
+    opening = {pair: max(part.length for part in shapely.get_parts(  # longest connected run
+        shapely.line_merge(shapely.MultiLineString(pieces)))) for pair, pieces in shared.items()}
+    for (f, g), length in opening.items():
         if length > SLIT:
             parent[root(f)] = root(g)
     members: dict[int, list[int]] = {}
