@@ -139,3 +139,11 @@ def test_cut_off_planes_at_three_wall_thicknesses_for_thick_walls():
     data = build("floor_slab", {"wall_thickness": 400, "insulation_thickness": 400})
     ys = [y for region in data["section"]["regions"] for _, y in region["polygon"]]
     assert min(ys) == pytest.approx(-2400) and max(ys) == pytest.approx(200 + 2400)
+
+
+def test_count_choice_takes_a_whole_number():
+    """A count option ("5" chambers) may come as the number 5 (a CSV cell, a JSON number)."""
+    assert build("glazing_edge", {"chambers": 5}) == build("glazing_edge", {"chambers": "5"})
+    with pytest.raises(InvalidSection) as info:
+        build("glazing_edge", {"chambers": 6})
+    assert info.value.field == "/parameters/chambers"
