@@ -111,6 +111,9 @@ def test_material_conductivity_out_of_range():
                       "foundation_depth": 500}, "foundation_depth", "foundation"),
     ("ground_floor", {"perimeter_insulation_depth": 1200, "foundation_depth": 800},
      "perimeter_insulation_depth", "foundation"),
+    ("window_installation", {"frame_offset": 0.3}, "frame_offset", "joint of the wall"),
+    ("window_installation", {"frame_offset": 90.5, "frame_depth": 70,
+                             "insulation_thickness": 160}, "frame_offset", "joint of the wall"),
 ])
 def test_cross_parameter_checks(template_id, params, field, words):
     with pytest.raises(InvalidSection) as info:

@@ -30,6 +30,7 @@ from coldseam.templates.base import (
     choice,
     cutoff_distance,
     flanking,
+    invalid,
     length,
     material,
     rect,
@@ -76,6 +77,7 @@ def glazing_conductivity(u_value: float, thickness_mm: float) -> float:
 def build(p: dict[str, Any]) -> dict[str, Any]:
     ti, t = p["insulation_thickness"], p["insulation_thickness"] + p["wall_thickness"]
     xf, df, bf, tg = p["frame_offset"], p["frame_depth"], p["frame_width"], p["glazing_thickness"]
+    _check_alignment(xf, df, (0.0, ti, t))
     lw, yg = cutoff_distance(t), -bf - GLAZING_LENGTH
     xg0 = xf + (df - tg) / 2
     xg1 = xg0 + tg
@@ -100,3 +102,17 @@ def build(p: dict[str, Any]) -> dict[str, Any]:
                    "given.", materials, regions, boundaries, flank, None)
     data["section"]["materials"].append(dict(CHAMBER_AIR, cavity=dict(CHAMBER_AIR["cavity"])))
     return data
+
+
+#: A frame face this close to a wall layer joint (mm) but not on it would leave a sliver.
+ALIGNMENT = 1.0
+
+
+def _check_alignment(xf: float, df: float, joints: tuple[float, ...]) -> None:
+    for face in (xf, xf + df):
+        for joint in joints:
+            if 0 < abs(face - joint) < ALIGNMENT:
+                raise invalid("frame_offset", f"a face of the frame (at {face:g} mm) lies "
+                              f"{abs(face - joint):.3g} mm from a joint of the wall layers "
+                              f"(at {joint:g} mm): put it on the joint or at least "
+                              f"{ALIGNMENT:g} mm away")
