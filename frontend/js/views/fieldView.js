@@ -1,9 +1,11 @@
 // The temperature field of an evaluation: the nodal field rasterised through Coldseam's
 // thermal colour map, isotherms, piece outlines, exposed and adiabatic edges, the lowest
-// interior surface temperatures marked, a colour bar in °C and a readout under the cursor.
+// interior surface temperatures marked, air cavities hatched, a colour bar in °C and a readout
+// under the cursor (a cavity's λeq when over one).
 
 import { h, replace, s } from "../dom.js";
 import { buildLocator, locate } from "../lib/barycentric.js";
+import { HATCH_ID, hatchSpec, materialText } from "../lib/cavities.js";
 import { isolines, niceLevels } from "../lib/contour.js";
 import { thermalLut } from "../lib/colormap.js";
 import { fixed } from "../lib/format.js";
@@ -70,11 +72,16 @@ function draw(canvas, overlay, surface, model, view) {
     points, triangles, values: temperature, lo: model.lo, hi: model.hi, lut: thermalLut() });
   ctx.putImageData(image, 0, 0);
   overlay.setAttribute("viewBox", `0 0 ${width} ${height}`);
+<<<<<<< HEAD
   const area = { x0: 0, y0: 0, x1: width, y1: height };
   const taken = [];
   const markers = minMarkers(model.field, view, taken, area); // marks first: isotherm labels keep clear
   replace(overlay, pieces(model.field, view), isothermPaths(model, view, taken, area), edges(model, view),
     markers, scaleBar(view, "m", height));
+=======
+  replace(overlay, pieces(model.field, view), cavities(model.field, view), isothermPaths(model, view), edges(model, view),
+    minMarkers(model.field, view), scaleBar(view, "m", height));
+>>>>>>> cavities
 }
 
 function pieces(field, view) {
@@ -82,8 +89,25 @@ function pieces(field, view) {
     d: [p.polygon, ...(p.holes || [])].map((ring) => ringPath(view, ring)).join(""), class: "piece" })));
 }
 
+<<<<<<< HEAD
 function isothermPaths(model, view, taken, area) {
   return s("g", { class: "isotherms" }, model.lines.map(({ level, lines }) => s("g", {},
+=======
+/** Air cavities in Coldseam's hatch; each path names its cavity for tests and tools. */
+function cavities(field, view) {
+  const drawn = (field.cavities || []).filter((c) => (c.rings || []).length);
+  if (!drawn.length) return null;
+  const build = ([tag, attrs, children]) => s(tag, attrs, ...(children || []).map(build));
+  return s("g", { class: "cavities", testid: "field-cavities" }, s("defs", {}, build(hatchSpec())),
+    drawn.map((c) => s("path", { d: c.rings.map((ring) => ringPath(view, ring)).join(""), class: "cavity",
+      fill: `url(#${HATCH_ID})`, "fill-rule": "evenodd", "data-region": c.region })));
+}
+
+function isothermPaths(model, view) {
+  const step = model.levels.length > 6 ? 2 : 1;
+  const placed = [];
+  return s("g", { class: "isotherms" }, model.lines.map(({ level, lines }, k) => s("g", {},
+>>>>>>> cavities
     lines.map((line) => s("path", { d: linePath(view, line), class: "isotherm" })),
     isothermLabel(level, lines, view, taken, area))));
 }
@@ -194,6 +218,6 @@ function hover(event, surface, readout, model, view) {
   const flux = model.field.heat_flux?.[hit.triangle];
   replace(readout, h("strong", {}, `θ ${fixed(theta, 2)} °C`),
     ` at (${fixed(x * 1000, 0)}, ${fixed(y * 1000, 0)}) mm`,
-    mat ? ` · ${mat.id}, λ ${mat.conductivity[0] === mat.conductivity[1] ? mat.conductivity[0] : mat.conductivity.join(" / ")} W/(m·K)` : "",
+    mat ? ` · ${materialText(mat)}` : "",
     Number.isFinite(flux) ? ` · |q| ${fixed(flux, 1)} W/m²` : "");
 }

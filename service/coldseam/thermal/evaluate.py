@@ -132,8 +132,9 @@ def _result(model, flanking, pair, levels, solution: LevelSolution, warnings) ->
         out["sensitivities"] = results.sensitivities(model, solution, flanking, pair)
     warnings = warnings + results.energy_warnings(model, solution)
     warnings += results.cutoff_warnings(model, solution)
-    out["materials"] = [{"id": m.id, "conductivity": list(m.conductivity), "source": m.source}
-                        for m in model.materials]
+    out["materials"] = results.materials_block(model)
+    out["cavities"] = [{k: v for k, v in c.items() if k != "material_index" and k[0] != "_"}
+                       for c in model.cavities]
     out["warnings"] = warnings
     out["caution"] = CAUTION
     out["engine_version"] = ENGINE_VERSION
