@@ -135,6 +135,9 @@ def _play_batches(store) -> list:
     store.mark_item_running("k", 2)
     store.requeue_item("k", 2)
     store.mark_item_running("k", 3)
+    seen.append(store.item_evaluation_id("k", 3))
+    store.set_item_evaluation("k", 3, "e3-capped")
+    seen += [store.item_evaluation_id("k", 3), store.item_evaluation_id("k", 99)]
     seen += [store.batch_items("k"), store.batch_counts("k"), store.batch_psi_l("k"),
              store.item_request("k", 0), store.unfinished_items(),
              store.cancel_batch("k2", {"kind": "Cancelled", "message": "c", "field": ""}),
@@ -163,3 +166,8 @@ def test_a_starting_server_resumes_only_its_own_batches(database_url):
     assert mine.batch_counts("theirs")["running"] == 1
     mine.close()
     theirs.close()
+
+
+def test_every_method_of_the_sqlite_store_has_a_postgresql_twin():
+    public = {name for name in dir(Store) if not name.startswith("_")}
+    assert sorted(public - set(dir(PostgresStore))) == []
