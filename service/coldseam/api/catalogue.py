@@ -103,7 +103,7 @@ async def template_evaluation(template_id: TemplateId, request: Request,
 @router.get("/templates/{template_id}/value", response_class=PlainTextResponse,
             responses={200: {"content": {"text/plain": {"example": "0.0613"},
                                          "text/csv": {"example": "insulation_thickness,psi\n"
-                                                                 "160,0.0796661\n"}}}})
+                                                                 "160,0.0795454\n"}}}})
 async def template_value(template_id: TemplateId, request: Request,
                          evaluations: EvaluationsDep, settings: SettingsDep, owner: OwnerDep,
                          quantity: Annotated[str, Query(examples=["psi"])] = "psi",
