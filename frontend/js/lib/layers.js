@@ -4,7 +4,7 @@
 
 /** Surface resistances for first guesses: ISO 6946 horizontal heat flow [from memory]. */
 export const DEFAULT_RS = { interior: 0.13, exterior: 0.04 };
-export const DEFAULT_TEMPERATURE = { interior: 20, exterior: 0 };
+export const DEFAULT_TEMPERATURE = { interior: 20, exterior: -5 };
 
 /** "material", "environment" or "ignore" from what the layer holds. */
 export function guessRole(layer) {
