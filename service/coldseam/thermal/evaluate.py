@@ -20,7 +20,7 @@ from coldseam import CAUTION, ENGINE_VERSION
 from coldseam.errors import LimitExceeded
 from coldseam.meshing.estimate import check_coarsest
 from coldseam.schema.evaluation import EvaluationRequest
-from coldseam.thermal import results
+from coldseam.thermal import results, units
 from coldseam.thermal.field import field_document
 from coldseam.thermal.levels import (
     ISO_RULE,
@@ -128,13 +128,14 @@ def _result(model, flanking, pair, levels, solution: LevelSolution, warnings) ->
         out["sensitivities"] = results.sensitivities(model, solution, flanking, pair)
     warnings = warnings + results.energy_warnings(model, solution)
     warnings += results.cutoff_warnings(model, solution)
+    warnings = units.plausibility_warnings(model.section) + warnings
     out["materials"] = [{"id": m.id, "conductivity": list(m.conductivity), "source": m.source}
                         for m in model.materials]
     out["warnings"] = warnings
     out["caution"] = CAUTION
     out["engine_version"] = ENGINE_VERSION
     out["name"] = model.section.name
-    return _jsonable(out)
+    return units.add_section_coordinates(_jsonable(out), model.section)
 
 
 def _jsonable(value):
