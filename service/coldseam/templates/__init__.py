@@ -28,13 +28,8 @@ from coldseam.templates import (
     ground_floor,
     window_reveal,
 )
-from coldseam.templates.base import (
-    CLIMATE_PARAMETERS,
-    Parameter,
-    TemplateInfo,
-    apply_climate,
-    resolve_parameters,
-)
+from coldseam.templates.base import Parameter, TemplateInfo, resolve_parameters
+from coldseam.templates.climate import CLIMATE_PARAMETERS, apply_climate
 
 logger = logging.getLogger(__name__)
 
