@@ -51,3 +51,14 @@ def test_a_bad_errors_mode_is_named(client_for):
         answer = client.get(VALUE, params={"errors": "loud"})
     assert answer.status_code == 422
     assert answer.text.startswith("error: /query/errors")
+
+
+def test_a_refused_key_keeps_its_401_even_inline(client_for):
+    with client_for(engine=DEFAULT_ENGINE, api_keys="harrowgate-sheet-key") as client:
+        refused = client.get(VALUE, params={"errors": "inline", "key": "wrong"})
+        missing = client.get(VALUE, params={"errors": "inline"})
+        bad = client.get(VALUE, params={"errors": "inline", "key": "harrowgate-sheet-key",
+                                        "insulation_thickness": "5"})
+    assert refused.status_code == 401 and refused.text.startswith("error: ")
+    assert missing.status_code == 401
+    assert bad.status_code == 200 and bad.headers["x-coldseam-status"] == "422"

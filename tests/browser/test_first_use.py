@@ -64,7 +64,8 @@ def test_the_demo_parapet_through_the_layer_mapping(server, page_factory, tmp_pa
     assert library.evaluate("el => el.scrollWidth <= el.clientWidth + 1")  # name not cut off
     page.get_by_test_id("load-layer-map").set_input_files(
         str(EXAMPLES / "demo-parapet-layers.json"))
-    assert row("SURF-INT-WALL").get_by_test_id("layer-env-id").input_value() == "library"
+    # the file is read asynchronously: wait for the rows to change
+    expect(row("SURF-INT-WALL").get_by_test_id("layer-env-id")).to_have_value("library")
     assert row("PIR").get_by_test_id("layer-lambda").input_value() == "0.022"
     assert row("TIMBER").get_by_test_id("layer-role").input_value() == "material"
     assert row("NOTES").get_by_test_id("layer-role").input_value() == "ignore"
@@ -100,11 +101,11 @@ def test_a_loaded_map_says_what_did_not_fit(server, page_factory, tmp_path):
     other.write_text(json.dumps({"pir": {"material": "pir", "conductivity": 0.025},
                                  "GLAZING": {"ignore": True}}))
     page.get_by_test_id("load-layer-map").set_input_files(str(other))
-    notes = page.get_by_test_id("layer-map-notes").inner_text()
-    assert "Not in this drawing: GLAZING." in notes
-    assert "Not in the saved map (first guesses kept): RENDER" in notes
+    notes = page.get_by_test_id("layer-map-notes")
+    expect(notes).to_contain_text("Not in this drawing: GLAZING.")
+    expect(notes).to_contain_text("Not in the saved map (first guesses kept): RENDER")
     pir = page.locator("tr[data-layer=PIR]")
-    assert pir.get_by_test_id("layer-lambda").input_value() == "0.025"  # case-insensitive
+    expect(pir.get_by_test_id("layer-lambda")).to_have_value("0.025")  # case-insensitive
 
 
 def test_l2d_says_why_it_is_missing_with_three_environments(server, page_factory, tmp_path):

@@ -49,7 +49,8 @@ RESERVED = {"quantity", "format", "key", "errors"}
 ERRORS_PARAMETER = ("'status' (default): errors answer 4xx/5xx with an 'error: ...' line. "
                     "'inline': errors answer 200 with the same line (the real status in the "
                     "X-Coldseam-Status header), for spreadsheet functions that show only a "
-                    "generic cell error for any other status.")
+                    "generic cell error for any other status. A missing or refused API key "
+                    "keeps its 401.")
 KEY_PARAMETER = ("An API key, for callers that cannot send an Authorization header (spreadsheet "
                  "web-service functions); accepted on this endpoint only. URLs end up in proxy "
                  "and server logs, browser histories and the spreadsheet file: prefer the "
