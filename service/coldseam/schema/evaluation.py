@@ -8,6 +8,7 @@ from typing import Any, Literal
 from pydantic import Field, ValidationError, field_validator, model_validator
 
 from coldseam.errors import InvalidSection
+from coldseam.schema.dynamics import DynamicsRequest, check_dynamics
 from coldseam.schema.section import (
     MAX_COORDINATE,
     Point,
@@ -102,6 +103,9 @@ class EvaluationRequest(_Strict):
     psi: PsiRequest | None = None
     condensation: CondensationRequest | None = None
     options: EngineOptions = Field(default_factory=EngineOptions)
+    dynamics: DynamicsRequest | None = Field(
+        default=None, description="Periodic (ISO 13786), time-constant and transient "
+        "results; materials then need density and specific heat.")
 
 
 def parse_request(data: Any) -> EvaluationRequest:
@@ -117,6 +121,7 @@ def parse_request(data: Any) -> EvaluationRequest:
     except ValidationError as exc:
         raise invalid_from_pydantic(exc) from None
     check_references(request.section, "/section")
+    check_dynamics(request.dynamics, request.section)
     return request
 
 

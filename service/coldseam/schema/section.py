@@ -44,6 +44,11 @@ class Material(_Strict):
         "`conductivity` is not given.",
     )
     description: str | None = Field(default=None, max_length=400)
+    density: float | None = Field(default=None, gt=0, le=25_000,
+                                  description="Density ρ in kg/m³ (dynamic evaluations).")
+    specific_heat: float | None = Field(
+        default=None, gt=0, le=20_000,
+        description="Specific heat capacity c in J/(kg·K) (dynamic evaluations).")
 
     @field_validator("conductivity")
     @classmethod

@@ -20,7 +20,7 @@ from coldseam import CAUTION, ENGINE_VERSION
 from coldseam.errors import LimitExceeded
 from coldseam.meshing.estimate import check_coarsest
 from coldseam.schema.evaluation import EvaluationRequest
-from coldseam.thermal import results
+from coldseam.thermal import dynamics_result, results
 from coldseam.thermal.field import field_document
 from coldseam.thermal.levels import (
     ISO_RULE,
@@ -55,9 +55,11 @@ def evaluate(request: EvaluationRequest, progress: Progress | None = None) -> Ev
     pair = results.psi_pair(model)
     report("meshing", 0.05)
     check_coarsest(model.classified, request.options.max_nodes)
-    levels, solution, warnings = _certify(model, flanking, pair, report)
+    levels, solution, warnings, watch = _certify(model, flanking, pair, report)
     report("post-processing", 0.9)
     result = _result(model, flanking, pair, levels, solution, warnings)
+    if watch is not None:
+        result.update(_jsonable(dynamics_result.block(model, solution, watch)))
     _release_solvers(solution)  # the field needs temperatures only: free the factorisations
     field = field_document(model, solution)
     report("post-processing", 1.0)
@@ -70,6 +72,7 @@ def _certify(model: ThermalModel, flanking: list[FlankingU], pair, report: Progr
     levels: list[LevelFigures] = []
     warnings: list[str] = []
     solution: LevelSolution | None = None
+    watch = dynamics_result.Watch.start(model)  # None without a dynamics block
     mesh, probes = first_level(model.classified)
     for k in range(options.max_levels):
         if mesh.nodes > options.max_nodes:
@@ -85,15 +88,17 @@ def _certify(model: ThermalModel, flanking: list[FlankingU], pair, report: Progr
         if levels:
             compare(levels[-1], figures)
         levels.append(figures)
+        if watch is not None:
+            watch.add(model, solution, figures)  # the dynamic figures of this level
         report("solving", 0.1 + 0.8 * (1 - 0.6 ** (k + 1)))
-        if met(levels, options.accuracy):
+        if met(levels, options.accuracy) and (watch is None or watch.settled()):
             break
         if k + 1 >= options.max_levels:
             warnings.append(f"refinement stopped at the level limit ({options.max_levels}) "
                             "before the accuracy target was met")
             break
         mesh = next_level(mesh, error_indicators(model, solution), order)
-    return levels, solution, warnings
+    return levels, solution, warnings, watch
 
 
 def _release_solvers(solution: LevelSolution) -> None:
@@ -128,13 +133,20 @@ def _result(model, flanking, pair, levels, solution: LevelSolution, warnings) ->
         out["sensitivities"] = results.sensitivities(model, solution, flanking, pair)
     warnings = warnings + results.energy_warnings(model, solution)
     warnings += results.cutoff_warnings(model, solution)
-    out["materials"] = [{"id": m.id, "conductivity": list(m.conductivity), "source": m.source}
-                        for m in model.materials]
+    out["materials"] = [_material(m) for m in model.materials]
     out["warnings"] = warnings
     out["caution"] = CAUTION
     out["engine_version"] = ENGINE_VERSION
     out["name"] = model.section.name
     return _jsonable(out)
+
+
+def _material(m) -> dict:
+    out = {"id": m.id, "conductivity": list(m.conductivity), "source": m.source}
+    if m.density is not None and m.specific_heat is not None:
+        out.update(density=m.density, specific_heat=m.specific_heat,
+                   capacity_source=m.capacity_source)
+    return out
 
 
 def _jsonable(value):

@@ -55,10 +55,15 @@ class LevelFigures:
     relative_change: float | None = None
     temperature_change: float | None = None
     design_temperature_change: float | None = None
+    #: Dynamic evaluations only (left out of ``as_dict`` otherwise): the slowest time
+    #: constant (h) and the largest relative change of the watched dynamic figures.
+    slowest_time_constant_hours: float | None = None
+    dynamic_change: float | None = None
 
     def as_dict(self) -> dict:
+        optional = {"slowest_time_constant_hours", "dynamic_change"}
         return {k: (None if v is None else round(float(v), 10) if isinstance(v, float) else v)
-                for k, v in self.__dict__.items()}
+                for k, v in self.__dict__.items() if v is not None or k not in optional}
 
 
 def first_level(classified: Classified) -> tuple[Mesh, np.ndarray]:
