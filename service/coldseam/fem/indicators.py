@@ -71,8 +71,12 @@ def _accumulate(index: np.ndarray, values: np.ndarray, size: int) -> np.ndarray:
 
 
 def residual_indicators(space: Space, conductivity: np.ndarray, conductance: np.ndarray,
-                        theta: np.ndarray, ambient: np.ndarray) -> np.ndarray:
-    """ηₖ² (E, k) of each of the k solutions θ (D, k) with boundary temperatures (B, k)."""
+                        theta: np.ndarray, ambient: np.ndarray,
+                        source: np.ndarray | None = None) -> np.ndarray:
+    """ηₖ² (E, k) of each of the k solutions θ (D, k) with boundary temperatures (B, k).
+
+    ``source`` (E, k): a right-hand side s of ∇·(Λ∇θ) = s, constant per triangle, taken off
+    the element residual (dynamic problems: s = ρc θ' at the triangle's mean)."""
     mesh = space.mesh
     theta = theta.reshape(len(theta), -1)
     ambient = ambient.reshape(len(ambient), -1)
@@ -126,6 +130,12 @@ def residual_indicators(space: Space, conductivity: np.ndarray, conductance: np.
     if space.order == 2:
         diameter = np.max(np.stack([np.linalg.norm(pts[:, j] - pts[:, i], axis=1)
                                     for i, j in _SIDES], axis=1), axis=1)
-        residual = _divergence(space, theta, grad_lambda, conductivity) ** 2
-        eta += (diameter ** 2 / mean_lambda * area)[:, None] * residual
+        residual = _divergence(space, theta, grad_lambda, conductivity)
+        if source is not None:
+            residual = residual - source
+        eta += (diameter ** 2 / mean_lambda * area)[:, None] * residual ** 2
+    elif source is not None:
+        diameter = np.max(np.stack([np.linalg.norm(pts[:, j] - pts[:, i], axis=1)
+                                    for i, j in _SIDES], axis=1), axis=1)
+        eta += (diameter ** 2 / mean_lambda * area)[:, None] * source ** 2
     return eta

@@ -5,7 +5,8 @@ With the unit fields U (θ = U T for steady boundary temperatures T) and W = K_f
 decay C e' + K e = 0 and jumps by W ΔT' wherever the slope T' changes (at every series point;
 at t = 0 from the steady state). The jumps are smooth fields (their modal components fall as
 τₖ²), so e is represented with high accuracy in a small space V: the block Krylov space of
-A = K_ff⁻¹ C_ff started at W, plus the constant field (which makes the discrete energy balance
+A = K_ff⁻¹ C_ff started at W, its rational counterpart with (K + C/Δt)⁻¹ for the
+response within a step, plus the constant field (which makes the discrete energy balance
 Σ heat flows = d(stored heat)/dt hold exactly in the reduced model). On V the decay is solved
 exactly (Galerkin: eigenpairs of C_r s = τ K_r s), so each mode evolves as e^(−t/τ) between
 series points; V grows until the outputs at the series times change by less than
@@ -26,8 +27,8 @@ log = logging.getLogger(__name__)
 
 #: Outputs must change by less than this fraction of their swing when V grows by one check.
 TOLERANCE = 1e-5
-BLOCKS_PER_CHECK = 4
-MAX_BLOCKS = 400
+BLOCKS_PER_CHECK = 3
+MAX_BLOCKS = 300
 
 
 @dataclass
@@ -40,16 +41,23 @@ class ReducedDecay:
     jumps: np.ndarray  # (m, N): modal amplitudes of the jump W ΔT' per unit ΔT' of each env
 
 
-def krylov_blocks(k_ff, c_ff, solve, start: np.ndarray, blocks: int) -> np.ndarray:
-    """A K-orthonormal basis of span{1, W, A W, …, A^(blocks−1) W}, A = K⁻¹C (F, m)."""
+def krylov_blocks(k_ff, c_ff, solves, start: np.ndarray, blocks: int) -> np.ndarray:
+    """A K-orthonormal basis of the constant field and the rational Krylov spaces
+    span{W, A_σ W, …, A_σ^(blocks−1) W} with A_σ = (K + σC)⁻¹ C, one for each solver of
+    K + σC in ``solves`` (F, m). σ = 0 resolves the slow modes (long runs), σ = 1/Δt the
+    response within a step: together they need few vectors for both."""
     basis = _orthonormal(k_ff, np.ones((start.shape[0], 1)), np.zeros((start.shape[0], 0)))
     block = _orthonormal(k_ff, start, basis)
     basis = np.hstack([basis, block])
+    last = [block for _ in solves]
     for _ in range(blocks - 1):
-        if block.shape[1] == 0:
-            break  # an invariant subspace: the basis is exact
-        block = _orthonormal(k_ff, solve(c_ff @ block), basis)
-        basis = np.hstack([basis, block])
+        for k, solve in enumerate(solves):
+            if last[k].shape[1] == 0:
+                continue  # an invariant subspace for this shift
+            last[k] = _orthonormal(k_ff, solve(c_ff @ last[k]), basis)
+            basis = np.hstack([basis, last[k]])
+        if all(b.shape[1] == 0 for b in last):
+            break
     return basis
 
 

@@ -31,12 +31,15 @@ import numpy as np
 from coldseam.errors import InvalidSection
 from coldseam.fem.capacity import capacity_matrix
 from coldseam.fem.dynamics import DynamicProblem
+from coldseam.fem.indicators import residual_indicators
 from coldseam.thermal.model import ThermalModel
 from coldseam.thermal.solve import LevelSolution, Run, unit_ambient
 
 HOUR = 3600.0
 #: The certificate continues until these change by less than this fraction between levels.
 DYNAMIC_TARGET = 5e-3
+#: A transient run refines for the harmonic of this many time steps per period.
+TRANSIENT_PERIODS = 4
 
 
 def volumetric_capacities(model: ThermalModel) -> np.ndarray:
@@ -60,7 +63,9 @@ def volumetric_capacities(model: ThermalModel) -> np.ndarray:
 def dynamic_problem(model: ThermalModel, run: Run) -> DynamicProblem:
     space = run.problem.space
     rho_c = volumetric_capacities(model)[space.mesh.material]
-    return DynamicProblem(run.problem, capacity_matrix(space, rho_c))
+    dyn = DynamicProblem(run.problem, capacity_matrix(space, rho_c))
+    dyn.volumetric = rho_c  # ρc per triangle, J/(m³·K)
+    return dyn
 
 
 @dataclass
@@ -71,6 +76,8 @@ class LevelDynamics:
     harmonic_flows: np.ndarray | None  # (N, N) complex Φ̂ij
     time_constants: np.ndarray  # s, longest first
     watched: dict[str, float] = field(default_factory=dict)  # what the certificate compares
+    transient: dict | None = None  # the transient block of this level (design run)
+    indicators: np.ndarray | None = None  # (E,) where to refine for the dynamic results
 
 
 def level_dynamics(model: ThermalModel, solution: LevelSolution) -> LevelDynamics:
@@ -78,35 +85,83 @@ def level_dynamics(model: ThermalModel, solution: LevelSolution) -> LevelDynamic
     dyn = dynamic_problem(model, solution.design)
     count = request.time_constants.count if request.time_constants else 1
     taus = dyn.time_constants(count)
-    flows, period = None, None
+    flows, period, fields = None, None, []
     if request.periodic is not None:
         period = request.periodic.period_hours
-        flows = harmonic_flows(model, dyn, 2 * math.pi / (period * HOUR))
+        flows = harmonic_flows(model, dyn, 2 * math.pi / (period * HOUR), fields)
     watched = {"time_constant": float(taus[0])}
     if flows is not None:
         for (a, b), value in _pairs(model, flows).items():
             watched[f"coupling {a}|{b}"] = abs(value)
         for k, env in enumerate(model.env_ids):
             watched[f"admittance {env}"] = abs(flows[k, k])
-    return LevelDynamics(period, flows, taus, watched)
+    series = None
+    if request.transient is not None:
+        from coldseam.thermal.transient import transient_block
+
+        series = transient_block(model, dyn, solution.design)
+        # the harmonic of period 4Δt: refines where the response within a step varies
+        harmonic_flows(model, dyn, 2 * math.pi / (TRANSIENT_PERIODS *
+                                                  request.transient.time_step_hours * HOUR),
+                       fields)
+    level = LevelDynamics(period, flows, taus, watched, series)
+    level.indicators = _indicators(dyn, fields)
+    return level
+
+
+def _indicators(dyn: DynamicProblem, fields: list) -> np.ndarray | None:
+    """Residual error indicators (E,) of the harmonic fields (real and imaginary parts, with
+    the capacity term ρc·iωθ̂ as the element source), normalised to sum 1."""
+    if not fields:
+        return None
+    p = dyn.problem
+    space = p.space
+    mean_dofs = space.cell_dofs[:, 3:] if space.order == 2 else space.cell_dofs
+    volumetric = dyn.volumetric
+    total = np.zeros(space.mesh.elements)
+    for theta, ambient, omega in fields:
+        mean = theta[mean_dofs].mean(axis=1)  # (E, N) complex: the exact triangle means
+        source = np.hstack([-omega * volumetric[:, None] * mean.imag,
+                            omega * volumetric[:, None] * mean.real])
+        eta = residual_indicators(space, p.conductivity, p.conductance,
+                                  np.hstack([theta.real, theta.imag]),
+                                  np.hstack([ambient.real, ambient.imag]), source)
+        total += eta.sum(axis=1)
+    sum_ = total.sum()
+    return total / sum_ if sum_ > 0 and np.isfinite(sum_) else None
 
 
 def dynamic_change(previous: LevelDynamics, current: LevelDynamics) -> float:
-    """Largest relative change of the watched figures between two levels."""
+    """Largest relative change between two levels of the watched figures, and of the
+    transient series (minimum surface temperatures and heat flows, relative to the swing of
+    their kind over the run)."""
     change = 0.0
     for key, value in current.watched.items():
         before = previous.watched.get(key)
         if before is None:
             return math.inf
         change = max(change, abs(value - before) / max(abs(value), 1e-300))
+    if current.transient is not None and previous.transient is not None:
+        for kind in ("min_surface_temperature", "heat_flows"):
+            now = np.array(list(current.transient[kind].values()))
+            then = np.array(list(previous.transient[kind].values()))
+            swing = max(float(np.ptp(now, axis=1).max()), 1e-12)
+            if kind == "min_surface_temperature":
+                air = np.array(list(current.transient["air_temperatures"].values()))
+                swing = max(swing, float(np.ptp(air, axis=1).max()))
+            change = max(change, float(np.abs(now - then).max()) / swing)
     return change
 
 
-def harmonic_flows(model: ThermalModel, dyn: DynamicProblem, omega: float) -> np.ndarray:
-    """Φ̂ij (N, N): complex heat flow into the section from i for a unit harmonic at j."""
+def harmonic_flows(model: ThermalModel, dyn: DynamicProblem, omega: float,
+                   fields: list | None = None) -> np.ndarray:
+    """Φ̂ij (N, N): complex heat flow into the section from i for a unit harmonic at j
+    (the fields θ̂ (D, N) are appended to ``fields`` with ω, for the error indicators)."""
     mesh = dyn.problem.space.mesh
     ambient = unit_ambient(model, mesh).astype(complex)
     theta = dyn.harmonic(ambient, omega)
+    if fields is not None:
+        fields.append((theta, ambient, omega))
     n_env = len(model.env_ids)
     groups = len(model.boundary_env)
     out = np.empty((n_env, n_env), complex)

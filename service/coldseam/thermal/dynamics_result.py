@@ -29,6 +29,7 @@ class Watch:
     def __init__(self) -> None:
         self.levels: list[LevelDynamics] = []
         self.change: float | None = None
+        self.changes: list[float] = []
 
     @classmethod
     def start(cls, model: ThermalModel) -> Watch | None:
@@ -43,11 +44,19 @@ class Watch:
         figures.slowest_time_constant_hours = float(current.time_constants[0] / HOUR)
         if self.levels:
             self.change = dynamic_change(self.levels[-1], current)
+            self.changes.append(self.change)
             figures.dynamic_change = self.change
         self.levels.append(current)
 
+    def indicators(self, steady: np.ndarray) -> np.ndarray:
+        """The steady refinement weights plus those of the dynamic fields of the last level."""
+        extra = self.levels[-1].indicators
+        return steady if extra is None else steady + extra
+
     def settled(self) -> bool:
-        return self.change is not None and self.change < DYNAMIC_TARGET
+        """The last two changes under the target: one small change alone can be luck (a
+        level that refined where the dynamic fields do not care)."""
+        return len(self.changes) >= 2 and max(self.changes[-2:]) < DYNAMIC_TARGET
 
 
 def block(model: ThermalModel, solution: LevelSolution, watch: Watch) -> dict:
@@ -66,7 +75,7 @@ def _block(model: ThermalModel, solution: LevelSolution, watch: Watch) -> dict:
         out["time_constants_hours"] = (last.time_constants / HOUR).tolist()
     if request.transient is not None:
         design = solution.design
-        out["transient"] = transient_block(model, dynamic_problem(model, design), design)
+        out["transient"] = dict(last.transient)
         fr_si = solution.condensation
         if fr_si is not None and fr_si is not design:
             extra = transient_block(model, dynamic_problem(model, fr_si), fr_si)

@@ -97,7 +97,8 @@ def _certify(model: ThermalModel, flanking: list[FlankingU], pair, report: Progr
             warnings.append(f"refinement stopped at the level limit ({options.max_levels}) "
                             "before the accuracy target was met")
             break
-        mesh = next_level(mesh, error_indicators(model, solution), order)
+        eta = error_indicators(model, solution)
+        mesh = next_level(mesh, eta if watch is None else watch.indicators(eta), order)
     return levels, solution, warnings, watch
 
 

@@ -18,6 +18,7 @@ import scipy.sparse as sp
 
 from coldseam.fem import transient
 from coldseam.fem.dynamics import DynamicProblem
+from coldseam.fem.solvers import factorize
 from coldseam.fem.system import FAMILIES
 from coldseam.thermal.model import ThermalModel
 from coldseam.thermal.solve import Run, unit_ambient
@@ -90,13 +91,20 @@ class TransientRun:
         changes = np.diff(np.vstack([np.zeros((1, slopes.shape[1])), slopes]), axis=0)
         self.changes = np.vstack([changes, np.zeros((1, slopes.shape[1]))])  # (n, N)
         self.driven = np.flatnonzero(np.any(self.changes != 0, axis=0))
+        self._shifted = None
+
+    def _solves(self) -> list:
+        """Solvers of K_ff and of K_ff + C_ff/Δt (factorised here, once per run)."""
+        if self._shifted is None:
+            self._shifted = factorize((self.dyn.k_ff + self.dyn.c_ff / self.dt).tocsc())
+        return [self.dyn.solver.solve, self._shifted.solve]
 
     def evaluate(self) -> dict:
         p, dyn = self.dyn.problem, self.dyn
         start = self.w[p.free][:, self.driven]
         blocks, previous = transient.BLOCKS_PER_CHECK, None
         while True:
-            basis = transient.krylov_blocks(dyn.k_ff, dyn.c_ff, dyn.solver.solve, start, blocks)
+            basis = transient.krylov_blocks(dyn.k_ff, dyn.c_ff, self._solves(), start, blocks)
             values = self._values(basis)
             if previous is not None and self._settled(previous, values):
                 break
