@@ -30,6 +30,7 @@ from coldseam.reporting.html_parts import (
     table,
     tag,
 )
+from coldseam.reporting.report_dynamics import dynamics_block
 from coldseam.reporting.report_results import (
     condensation_block,
     convergence_block,
@@ -41,8 +42,10 @@ from coldseam.reporting.report_results import (
 from coldseam.reporting.report_style import CSS
 
 
-def render_report(result: dict, request: dict, svg: str, *, generated: str | None = None) -> str:
-    """The report as one HTML document. ``generated``: an optional date line."""
+def render_report(result: dict, request: dict, svg: str, transient_svg: str | None = None, *,
+                  generated: str | None = None) -> str:
+    """The report as one HTML document. ``transient_svg``: the transient picture of a
+    dynamic evaluation; ``generated``: an optional date line."""
     result, request = as_dict(result), as_dict(request)
     sec = as_dict(request.get("section"))
     unit = sec.get("unit") if sec.get("unit") in ("mm", "m") else "m"
@@ -56,6 +59,7 @@ def render_report(result: dict, request: dict, svg: str, *, generated: str | Non
         results_block(result, sec, unit),
         psi_block(result),
         condensation_block(result, unit),
+        dynamics_block(result, transient_svg),
         convergence_block(result),
         sensitivities_block(result),
         section("Warnings", bullet_list(str(w) for w in as_list(result.get("warnings")))),
@@ -123,14 +127,22 @@ def _materials_table(sec: dict, result: dict) -> Html:
     used = [as_dict(m) for m in as_list(result.get("materials"))]
     listed = {str(m.get("id")) for m in used}
     used += [m for key, m in given.items() if key not in listed]
+    dynamic = bool(result.get("dynamics"))
     rows = []
     for m in used:
         own = as_dict(given.get(str(m.get("id"))))
         source = m.get("source") or (f"library: {own['library']}" if own.get("library")
                                      else "given in the request")
-        rows.append([m.get("id"), _conductivity(m.get("conductivity", own.get("conductivity"))),
-                     source, own.get("description") or ""])
-    return table(["Material", "λ W/(m·K)", "Source", "Description"], rows, "Materials")
+        row = [m.get("id"), _conductivity(m.get("conductivity", own.get("conductivity"))),
+               source, own.get("description") or ""]
+        if dynamic:
+            row[3:3] = [number(m.get("density"), 0), number(m.get("specific_heat"), 0),
+                        m.get("capacity_source") or DASH]
+        rows.append(row)
+    head = ["Material", "λ W/(m·K)", "Source of λ", "Description"]
+    if dynamic:
+        head[3:3] = ["ρ kg/m³", "c J/(kg·K)", "Source of ρ and c"]
+    return table(head, rows, "Materials")
 
 
 def _conductivity(value: Any) -> str:
