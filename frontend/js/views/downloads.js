@@ -22,6 +22,8 @@ export function downloadsCard(result) {
       toCsv(keyFigureRows(result)), "download-csv")),
     h("li", {}, link("Picture (SVG)", "picture.svg", "download-svg", { download: `${stem}.svg` })),
     h("li", {}, link("Picture (PNG)", "picture.png", "download-png", { download: `${stem}.png` })),
+    result.dynamics && result.dynamics.transient ?
+      h("li", {}, link("Transient run (SVG)", "transient.svg", "download-transient", { download: `${stem}-transient.svg` })) : null,
     h("li", {}, link("Printable report", "report", "download-report", { target: "_blank", rel: "noopener" }))));
 }
 
