@@ -99,9 +99,9 @@ async def report(evaluation_id: str, evaluations: EvaluationsDep,
     render_svg = reporting("picture", "render_svg")
     render_report = reporting("report", "render_report")
     svg = await run_in_threadpool(render_svg, field, result)
-    transient = None
+    extra = ()  # the transient picture of a dynamic evaluation
     if (result.get("dynamics") or {}).get("transient"):
-        transient = await run_in_threadpool(
-            reporting("transient_plot", "render_transient_svg"), result)
-    html = await run_in_threadpool(render_report, result, request, svg, transient)
+        extra = (await run_in_threadpool(
+            reporting("transient_plot", "render_transient_svg"), result),)
+    html = await run_in_threadpool(render_report, result, request, svg, *extra)
     return HTMLResponse(html)
