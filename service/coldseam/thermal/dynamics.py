@@ -46,8 +46,8 @@ def volumetric_capacities(model: ThermalModel) -> np.ndarray:
     """ρc per material, J/(m³·K); 0 for an air cavity. InvalidSection (422) naming the first
     material without density or specific heat."""
     values = []
-    for i, (use, given) in enumerate(zip(model.materials, model.section.materials, strict=True)):
-        if getattr(given, "cavity", None) is not None:
+    for i, use in enumerate(model.materials):  # the section's, then one per cavity region
+        if use.cavity:
             values.append(0.0)
             continue
         for name, value in (("density", use.density), ("specific_heat", use.specific_heat)):
