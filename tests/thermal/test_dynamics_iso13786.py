@@ -111,3 +111,28 @@ def test_long_period_tends_to_the_steady_coupling():
     assert periodic["coupling"]["inside|outside"]["modulus"] == pytest.approx(
         result["L2D"], rel=1e-3)
     assert periodic["decrement_factor"]["inside|outside"] == pytest.approx(1.0, rel=1e-3)
+
+
+def test_wall_with_an_air_cavity_equals_iso13786_with_the_cavity_as_a_resistance():
+    # ISO 13786 takes an air layer as a pure resistance, [[1, −R], [0, 1]] [from memory]; the
+    # engine's cavity stores no heat and conducts with its λeq (reported under `cavities`).
+    section = layered_wall([("brick", 0.77, 100), ("air", 1.0, 50), ("block", 0.56, 100)],
+                           height=600)
+    section["materials"] = [
+        {"id": "brick", "conductivity": 0.77, "density": 1700, "specific_heat": 1000},
+        {"id": "air", "cavity": {}},
+        {"id": "block", "conductivity": 0.56, "density": 1700, "specific_heat": 1000}]
+    result = run({"section": section, "dynamics": {"periodic": {"period_hours": 24}}})
+    lam_eq = result["cavities"][0]["equivalent_conductivity"]
+    period = 24 * 3600.0
+    z = np.array([[1, -0.13], [0, 1]], complex)  # side 1: inside (block first)
+    z = layer_matrix(0.56, 1700, 1000, 0.1, period) @ z
+    z = np.array([[1, -0.05 / lam_eq], [0, 1]], complex) @ z
+    z = layer_matrix(0.77, 1700, 1000, 0.1, period) @ z
+    z = np.array([[1, -0.04], [0, 1]], complex) @ z
+    periodic = result["dynamics"]["periodic"]
+    for entry, reference in ((periodic["coupling"]["inside|outside"], -1 / z[0, 1]),
+                             (periodic["admittance"]["inside"], -z[0, 0] / z[0, 1]),
+                             (periodic["admittance"]["outside"], -z[1, 1] / z[0, 1])):
+        value = as_complex(entry, 24.0)
+        assert abs(value - 0.6 * reference) <= TARGET * abs(0.6 * reference), (entry, reference)
