@@ -27,6 +27,8 @@ STATUS_BY_KIND = {
     "SolveFailed": 500,
     "WorkerCrashed": 500,
     "StoreFailed": 500,
+    "StoreFull": 507,
+    "StoreUnavailable": 503,
     "Timeout": 504,
     "Interrupted": 503,
 }
@@ -43,6 +45,26 @@ class BodyTooLarge(HTTPException):
 
     def __str__(self) -> str:
         return str(self.detail)
+
+
+class BodySlow(HTTPException):
+    """The request body did not arrive within ``body_timeout`` seconds (HTTP 408)."""
+
+    def __init__(self, limit: float) -> None:
+        super().__init__(408, f"the request body did not arrive within {limit:g} s; send it "
+                         "at once (this server does not wait on slow uploads)")
+        self.limit = limit
+
+    def __str__(self) -> str:
+        return str(self.detail)
+
+
+class Busy(Exception):
+    """A shared resource (the DXF reader) is busy and its waiting line full (HTTP 429)."""
+
+    def __init__(self, message: str, retry_after: int) -> None:
+        super().__init__(message)
+        self.message, self.retry_after = message, retry_after
 
 
 class EvaluationFailed(Exception):
@@ -140,6 +162,11 @@ async def _queue_full(request: Request, exc: QueueFull) -> Response:
     return respond(request, body, 429, {"Retry-After": str(exc.retry_after)})
 
 
+async def _busy(request: Request, exc: Busy) -> Response:
+    body = error_body("Busy", exc.message, "", request_id_of(request))
+    return respond(request, body, 429, {"Retry-After": str(exc.retry_after)})
+
+
 async def _body_too_large(request: Request, exc: BodyTooLarge) -> Response:
     body = error_body("LimitExceeded", str(exc), "", request_id_of(request))
     return respond(request, body, 413)
@@ -160,5 +187,6 @@ def install(app: FastAPI) -> None:
     app.add_exception_handler(StarletteHTTPException, _http_error)
     app.add_exception_handler(QueueFull, _queue_full)
     app.add_exception_handler(BodyTooLarge, _body_too_large)
+    app.add_exception_handler(Busy, _busy)
     app.add_exception_handler(EvaluationFailed, _evaluation_failed)
     app.add_exception_handler(Exception, _unexpected)

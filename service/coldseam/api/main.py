@@ -24,7 +24,7 @@ from coldseam.api import (
     pictures,
 )
 from coldseam.api.auth import load_keys
-from coldseam.api.deps import SettingsDep, get_owner
+from coldseam.api.deps import get_owner, single_query_values
 from coldseam.api.jobs import Evaluations
 from coldseam.api.middleware import ServiceMiddleware
 from coldseam.api.models import Health
@@ -44,6 +44,7 @@ Figures must be checked by a competent person; local codes and licensed practice
 async def lifespan(app: FastAPI) -> AsyncIterator[None]:
     settings: Settings = app.dependency_overrides.get(get_settings, get_settings)()
     app.state.keys = load_keys(settings)
+    app.state.workers = settings.workers
     store = Store(settings.database_path)
     if count := store.interrupt_unfinished("the server stopped before this evaluation "
                                            "finished; send it again"):
@@ -70,7 +71,8 @@ def create_app(settings: Settings | None = None) -> FastAPI:
         app.dependency_overrides[get_settings] = lambda: settings
     else:
         settings = get_settings()
-    api = APIRouter(prefix="/api/v1", dependencies=[Depends(get_owner)])
+    api = APIRouter(prefix="/api/v1", dependencies=[Depends(get_owner),
+                                                          Depends(single_query_values)])
     for module in (evaluations, pictures, imports, catalogue):
         api.include_router(module.router)
     app.include_router(api)
@@ -84,10 +86,11 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     return app
 
 
-def health(request: Request, settings: SettingsDep) -> Health:
-    """The service is up (no key needed)."""
+async def health(request: Request) -> Health:
+    """The service is up (no key needed). Answered on the event loop itself, touching neither
+    the store nor the thread pool, so that it answers at once however busy the server is."""
     return Health(status="ok", version=__version__, engine_version=ENGINE_VERSION,
-                  workers=settings.workers, auth="open" if request.app.state.keys.open
+                  workers=request.app.state.workers, auth="open" if request.app.state.keys.open
                   else "keys")
 
 
@@ -98,4 +101,5 @@ def _add_middleware(app: FastAPI, settings: Settings) -> None:
                            allow_methods=["GET", "POST"],
                            allow_headers=["Authorization", "Content-Type"],
                            expose_headers=["Location", "Retry-After", "X-Request-ID"])
-    app.add_middleware(ServiceMiddleware, max_body_bytes=settings.max_body_bytes)
+    app.add_middleware(ServiceMiddleware, max_body_bytes=settings.max_body_bytes,
+                       body_timeout=settings.body_timeout)
