@@ -77,6 +77,7 @@ class Evaluations:
             self.store.queue(key, evaluation_id, owner, request.section.name, request_text)
             self._unstored.pop(key, None)
             live = self._live[key] = Live()
+        self.flush_unstored()  # the store took a write: it may take the failures it could not
         job = Job(key=key, request=request.model_dump(mode="json"), label=request_id,
                   on_start=self._started, on_progress=self._progressed,
                   on_finish=self._finished)
@@ -87,6 +88,20 @@ class Evaluations:
             raise
         log.info("evaluation %s queued (request %s)", evaluation_id, request_id)
         return Submitted(evaluation_id, key, live.done)
+
+    def flush_unstored(self) -> None:
+        """Store the failures that could not be stored when they happened, where it now can."""
+        with self._lock:
+            pending = list(self._unstored.items())
+        for key, error in pending:
+            stored = {k: v for k, v in error.items() if k != "unstored"}
+            try:
+                self.store.finish(key, None, None, stored)
+            except (StoreFailure, sqlite3.Error):
+                return
+            with self._lock:
+                if self._unstored.get(key) is error:
+                    del self._unstored[key]
 
     def live(self, key: str) -> Live | None:
         with self._lock:

@@ -60,6 +60,7 @@ async def lifespan(app: FastAPI) -> AsyncIterator[None]:
         yield
     finally:
         await run_in_threadpool(pool.shutdown)
+        app.state.evaluations.flush_unstored()
         store.close()
 
 
