@@ -59,14 +59,6 @@ class BodySlow(HTTPException):
         return str(self.detail)
 
 
-class Busy(Exception):
-    """A shared resource (the DXF reader) is busy and its waiting line full (HTTP 429)."""
-
-    def __init__(self, message: str, retry_after: int) -> None:
-        super().__init__(message)
-        self.message, self.retry_after = message, retry_after
-
-
 class EvaluationFailed(Exception):
     """An evaluation ended with ``Outcome.error``; raised where a handler must answer."""
 
@@ -162,11 +154,6 @@ async def _queue_full(request: Request, exc: QueueFull) -> Response:
     return respond(request, body, 429, {"Retry-After": str(exc.retry_after)})
 
 
-async def _busy(request: Request, exc: Busy) -> Response:
-    body = error_body("Busy", exc.message, "", request_id_of(request))
-    return respond(request, body, 429, {"Retry-After": str(exc.retry_after)})
-
-
 async def _body_too_large(request: Request, exc: BodyTooLarge) -> Response:
     body = error_body("LimitExceeded", str(exc), "", request_id_of(request))
     return respond(request, body, 413)
@@ -187,6 +174,5 @@ def install(app: FastAPI) -> None:
     app.add_exception_handler(StarletteHTTPException, _http_error)
     app.add_exception_handler(QueueFull, _queue_full)
     app.add_exception_handler(BodyTooLarge, _body_too_large)
-    app.add_exception_handler(Busy, _busy)
     app.add_exception_handler(EvaluationFailed, _evaluation_failed)
     app.add_exception_handler(Exception, _unexpected)

@@ -29,6 +29,7 @@ from coldseam.api.jobs import Evaluations
 from coldseam.api.middleware import ServiceMiddleware
 from coldseam.api.models import Health
 from coldseam.api.pool import WorkerPool
+from coldseam.api.reader import ReaderGate
 from coldseam.api.store import Store
 from coldseam.settings import Settings, get_settings
 
@@ -96,6 +97,7 @@ async def health(request: Request) -> Health:
 
 
 def _add_middleware(app: FastAPI, settings: Settings) -> None:
+    app.add_middleware(ReaderGate, memory_mb=settings.worker_memory_mb)
     app.add_middleware(GZipMiddleware, minimum_size=4096)
     if settings.cors_origin_list:
         app.add_middleware(CORSMiddleware, allow_origins=settings.cors_origin_list,

@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import asyncio
 import importlib
+import json
 import logging
 import multiprocessing
 import resource
@@ -21,8 +22,8 @@ from concurrent.futures.process import BrokenProcessPool
 from typing import Any
 
 from fastapi import HTTPException
+from fastapi.concurrency import run_in_threadpool
 
-from coldseam.api.errors import Busy
 from coldseam.api.worker import ADDRESS_HEADROOM
 from coldseam.errors import LimitExceeded
 
@@ -31,6 +32,8 @@ log = logging.getLogger(__name__)
 READ_TIMEOUT = 60.0
 #: Uploads that may wait while one drawing is read; more are answered 429.
 WAITING = 3
+#: Seconds a refused upload is asked to wait (Retry-After).
+BUSY_RETRY = 5
 
 
 def dxf_importer() -> Any:
@@ -74,12 +77,13 @@ class DrawingReader:
                          unit: str | None) -> dict:
         """The importer's answer; its typed errors pass through, running out of memory or
         time becomes a 413 naming the file, a full waiting line a 429."""
-        mine, previous = self._admit()
+        mine, previous = self._take_turn()
         released = False
         try:
             if previous is not None:
                 await asyncio.wrap_future(previous)
-            future = self._submit(data, mapping, unit)
+            # a thread for the moment of handing over (it may start the process), not the read
+            future = await run_in_threadpool(self._submit, data, mapping, unit)
             future.add_done_callback(lambda _: mine.set_result(None))
             released = True  # from here the turn ends with the read, even if the client goes
             return await self._outcome(future)
@@ -91,20 +95,24 @@ class DrawingReader:
         """As ``read_async``, from code that is not on an event loop."""
         return asyncio.run(self.read_async(data, mapping, unit))
 
-    def _admit(self) -> tuple[Future, Future | None]:
+    def enter(self) -> bool:
+        """Take a place among the uploads being read or waiting; False when all are taken
+        (the upload is then answered 429 before its body is read)."""
         with self._lock:
             if self._admitted > self.waiting:
-                raise Busy("the DXF reader is busy with other drawings and its waiting line "
-                           "is full; send the drawing again shortly", retry_after=5)
+                return False
             self._admitted += 1
-            mine, previous = _turn(), self._last
-            self._last = mine
-        mine.add_done_callback(lambda _: self._leave())
-        return mine, previous
+            return True
 
-    def _leave(self) -> None:
+    def leave(self) -> None:
         with self._lock:
             self._admitted -= 1
+
+    def _take_turn(self) -> tuple[Future, Future | None]:
+        with self._lock:
+            mine, previous = _turn(), self._last
+            self._last = mine
+        return mine, previous
 
     def _submit(self, data: bytes, mapping: dict[str, Any] | None, unit: str | None) -> Future:
         with self._lock:
@@ -164,6 +172,51 @@ def _alive(executor: ProcessPoolExecutor) -> bool:
         return False
     processes = getattr(executor, "_processes", None) or {}
     return all(process.is_alive() for process in list(processes.values()))
+
+
+class ReaderGate:
+    """ASGI middleware: a DXF upload past the reader's waiting line is answered 429 at once,
+    before its body is read (parsing many large uploads at once would itself load the event
+    loop). Uploads without an accepted key pass on to be answered 401 and take no place."""
+
+    def __init__(self, app: Any, memory_mb: int, path: str = "/api/v1/imports/dxf") -> None:
+        self.app, self.memory_mb, self.path = app, memory_mb, path
+
+    async def __call__(self, scope: dict, receive: Any, send: Any) -> None:
+        if scope["type"] != "http" or scope.get("method") != "POST" or \
+                scope.get("path") != self.path or not _accepted(scope):
+            await self.app(scope, receive, send)
+            return
+        reader = drawing_reader(self.memory_mb)
+        if not reader.enter():
+            await _busy(send)
+            return
+        try:
+            await self.app(scope, receive, send)
+        finally:
+            reader.leave()
+
+
+def _accepted(scope: dict) -> bool:
+    ring = getattr(scope["app"].state, "keys", None)
+    if ring is None or ring.open:
+        return True
+    for name, value in scope.get("headers", []):
+        if name == b"authorization":
+            scheme, _, key = value.decode("latin-1").partition(" ")
+            return scheme.lower() == "bearer" and ring.owner_of(key.strip()) is not None
+    return False
+
+
+async def _busy(send: Any) -> None:
+    message = ("the DXF reader is busy with other drawings and its waiting line is full; "
+               f"send the drawing again in {BUSY_RETRY} s")
+    body = json.dumps({"detail": message, "field": "", "message": message, "kind": "Busy"})
+    await send({"type": "http.response.start", "status": 429,
+                "headers": [(b"content-type", b"application/json"),
+                            (b"retry-after", str(BUSY_RETRY).encode()),
+                            (b"content-length", str(len(body)).encode())]})
+    await send({"type": "http.response.body", "body": body.encode()})
 
 
 _readers: dict[int, DrawingReader] = {}
