@@ -17,6 +17,7 @@ import zlib
 from collections.abc import Iterator
 from dataclasses import dataclass, field
 from typing import Any
+from urllib.parse import quote
 
 from robust_support import wall_request
 
@@ -37,6 +38,7 @@ class Case:
     content: bytes | None = None
     headers: dict[str, str] = field(default_factory=lambda: {"content-type": "application/json"})
     form: dict[str, str] | None = None  # the layer map form (the body then goes as `layer_map`)
+    method: str = "POST"
 
 
 def _cavity_request() -> dict[str, Any]:
@@ -185,6 +187,13 @@ def cases() -> list[Case]:
         ]
     for name, request in _sections(rng):
         out.append(_case("section", name, "/api/v1/evaluations", json.dumps(request).encode()))
+    value = "/api/v1/templates/wall_corner/value"
+    for literal in (*EDGE_NUMBERS, *STRINGS[:6], "%ff%fe", "1,2"):
+        out.append(Case(f"value query: {literal[:14]!r}",
+                        f"{value}?insulation_thickness={quote(literal)}", method="GET"))
+    out.append(Case("value query: repeated", f"{value}?quantity=psi&quantity=fRsi", method="GET"))
+    out.append(Case("value query: many", value + "?" + "&".join(f"p{k}=1" for k in range(500)),
+                    method="GET"))
     return out
 
 
@@ -201,7 +210,9 @@ def _case(kind: str, name: str, path: str, content: bytes, encoding: str | None 
 
 def send(client: Any, case: Case) -> int:
     """Send one case with an httpx-like client; the status."""
-    if case.form is not None:
+    if case.method == "GET":
+        response = client.get(case.path)
+    elif case.form is not None:
         response = client.post(case.path, files={"file": ("x.dxf", DXF)}, data=case.form)
     else:
         response = client.post(case.path, content=case.content, headers=case.headers)

@@ -29,8 +29,8 @@ def _sweep(client, record_property, label: str) -> None:
 def test_the_sweep_has_every_kind():
     names = {case.name.split(": ")[0] for case in CASES}
     assert {"evaluation", "cavity", "dynamics", "template", "template-evaluation",
-            "layer-map", "batch", "section"} <= names
-    assert len(CASES) > 300
+            "layer-map", "batch", "section", "value query"} <= names
+    assert len(CASES) > 400
 
 
 def test_the_app_answers_the_sweep_without_a_5xx(client_for, record_property):
