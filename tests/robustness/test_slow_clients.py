@@ -27,6 +27,7 @@ def server(tmp_path_factory):
     folder = tmp_path_factory.mktemp("slow")
     with serve(folder / "data", folder / "server.log", workers=1,
                body_timeout=str(LIMIT), header_timeout=str(LIMIT)) as running:
+        running.log = folder / "server.log"
         yield running
 
 
@@ -177,3 +178,16 @@ def test_health_answers_at_once_while_evaluations_and_drawings_load_the_server(s
     assert statuses.count(200) >= len(requests), statuses
     assert 500 not in statuses
     assert delays[-1] < 1.0, delays  # the 0.1 s aim is measured in bench/, not asserted here
+
+
+def test_a_body_cut_short_by_the_client_leaving_is_no_server_fault(server):
+    connection = _connect(server)
+    connection.sendall(b"POST /api/v1/evaluations HTTP/1.1\r\nHost: x\r\n"
+                       b"Content-Type: application/json\r\nContent-Length: 5000\r\n\r\n"
+                       + b'{"section": {"unit": "mm"')
+    connection.close()
+    time.sleep(0.5)
+    assert httpx.get(f"{server.base}/healthz", timeout=10).status_code == 200
+    text = server.log.read_text()
+    assert "client went away before its request body arrived" in text
+    assert "unexpected failure" not in text

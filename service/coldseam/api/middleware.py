@@ -12,6 +12,8 @@ import time
 import uuid
 from typing import Any
 
+from starlette.requests import ClientDisconnect
+
 from coldseam.api.errors import BodySlow, BodyTooLarge
 
 log = logging.getLogger("coldseam.access")
@@ -70,6 +72,10 @@ class ServiceMiddleware:
                 await _too_large(send_wrapper, self.max_body_bytes, request_id)
             else:
                 await self.app(scope, self._limited(receive), send_wrapper)
+        except ClientDisconnect:  # the client left mid-body: no one to answer
+            status["code"] = 499
+            log.info("client went away before its request body arrived (request %s)",
+                     request_id)
         except Exception as exc:  # noqa: BLE001 - the last resort: logged, answered 500
             log.error("unexpected failure (request %s)", request_id, exc_info=exc)
             if status["started"]:

@@ -52,14 +52,16 @@ def classify(section: Section, partition: Partition) -> Classified:
 
 
 def _on_lines(partition, segments, lines, tol) -> set[tuple[int, int]]:
+    if not segments or not lines:
+        return set()
     pts = partition.points
-    out = set()
-    for seg in segments:
-        a, c = pts[seg[0]], pts[seg[1]]
-        probe = shapely.points([a, c, 0.5 * (a + c)])
-        if any(np.all(shapely.distance(line, probe) <= tol) for line in lines):
-            out.add(seg)
-    return out
+    ends = np.asarray(segments)
+    a, c = pts[ends[:, 0]], pts[ends[:, 1]]
+    probes = shapely.points(np.concatenate([a, c, 0.5 * (a + c)]))
+    on = np.zeros(len(segments), bool)
+    for line in lines:  # one vectorised distance call per line
+        on |= (shapely.distance(line, probes) <= tol).reshape(3, -1).all(axis=0)
+    return {segments[k] for k in np.flatnonzero(on)}
 
 
 def _split_at(partition: Partition, p: np.ndarray, tol: float) -> int | None:
