@@ -31,6 +31,7 @@ STATUS_BY_KIND = {
     "StoreUnavailable": 503,
     "Timeout": 504,
     "Interrupted": 503,
+    "Cancelled": 409,
 }
 SERVER_FAULTS = {"SolveFailed", "WorkerCrashed", "StoreFailed"}
 

@@ -22,6 +22,7 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
+from coldseam.api.batch_store import BATCH_SCHEMA, BatchTables
 from coldseam.errors import StoreFull, StoreUnavailable
 
 SCHEMA = """
@@ -94,8 +95,9 @@ def store_faults() -> Iterator[None]:
         raise
 
 
-class Store:
-    """The evaluations table of one SQLite database file."""
+class Store(BatchTables):
+    """The evaluations table (and the batch tables, ``BatchTables``) of one SQLite database
+    file."""
 
     def __init__(self, path: Path) -> None:
         check_writable(path.parent)
@@ -108,6 +110,7 @@ class Store:
             # (NORMAL keeps it across a killed process only); one fsync per result is cheap.
             self._conn.execute("PRAGMA synchronous=FULL")
             self._conn.executescript(SCHEMA)
+            self._conn.executescript(BATCH_SCHEMA)
 
     def close(self) -> None:
         with self._lock:

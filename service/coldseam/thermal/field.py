@@ -99,9 +99,11 @@ def _surface_minima(model, solution) -> dict:
 
 
 def _condensation_min(model, solution) -> dict | None:
+    from coldseam.thermal.singular import assess
+
     run = solution.condensation
-    if run is None:
-        return None
+    if run is None or assess(model).frsi:
+        return None  # none, or fixed by a known temperature the interior surface meets
     minimum = interior_minimum(model, run)
     if minimum is None:
         return None

@@ -10,6 +10,7 @@ from coldseam.thermal import humidity
 from coldseam.thermal.levels import LevelFigures
 from coldseam.thermal.model import ThermalModel
 from coldseam.thermal.psi import FlankingU
+from coldseam.thermal.singular import Meaning
 from coldseam.thermal.solve import LevelSolution, Run
 
 BALANCE = 1e-4  # ISO 10211: Σ flows / (½ Σ |flows|)
@@ -61,20 +62,25 @@ def interior_minimum(model: ThermalModel, run: Run) -> tuple[float, int] | None:
     return float(theta[k]), k
 
 
-def level_figures(model, solution: LevelSolution, flanking: list[FlankingU], pair):
+def level_figures(model, solution: LevelSolution, flanking: list[FlankingU], pair,
+                  meaning: Meaning | None = None):
+    """The figures of one level the certificate compares; minima that a known temperature
+    fixes by construction (``meaning``, see ``coldseam.thermal.singular``) are left out."""
     run = solution.design
     coupling = run.coupling
     upper = coupling[np.triu_indices(len(coupling), 1)]
     sum_ul = sum(f.u_value * f.length for f in flanking)
     psi = float(coupling[pair] - sum_ul) if (pair and model.request.psi) else None
     checked = solution.condensation or run
-    minimum = interior_minimum(model, checked)
-    design_minimum = interior_minimum(model, run)
+    minimum = None if meaning and meaning.frsi else interior_minimum(model, checked)
+    design_minimum = None if meaning and meaning.design_minimum else interior_minimum(model, run)
     return LevelFigures(
         nodes=solution.mesh.nodes, dofs=solution.space.dofs, elements=solution.mesh.elements,
         heat_flow=float(0.5 * np.abs(run.heat_flows).sum()), coupling_sum=float(upper.sum()),
-        psi=psi, min_temperature=None if minimum is None else minimum[0],
-        design_min_temperature=None if design_minimum is None else design_minimum[0])
+        psi=None if meaning and meaning.singular else psi,
+        min_temperature=None if minimum is None else minimum[0],
+        design_min_temperature=None if design_minimum is None else design_minimum[0],
+        probe_values=tuple(float(v) for v in run.theta[solution.probe_nodes]))
 
 
 def heat_flow_block(model: ThermalModel, solution: LevelSolution) -> dict:
@@ -187,7 +193,8 @@ def interior_weightings(model: ThermalModel, run: Run) -> dict:
 
 
 def sensitivities(model, solution: LevelSolution, flanking, pair) -> list[dict]:
-    """∂L2D/∂ln λ and ∂ψ/∂ln λ per material (W/(m·K) per unit relative change of λ)."""
+    """∂L2D/∂ln λ and, when ψ is requested, ∂ψ/∂ln λ per material (W/(m·K) per unit
+    relative change of λ)."""
     run = solution.design
     a, b = pair
     groups = np.flatnonzero(model.boundary_env == a)
@@ -197,8 +204,10 @@ def sensitivities(model, solution: LevelSolution, flanking, pair) -> list[dict]:
                                          weight=run.unit[:, a])
     dl2d = -dflow  # L_ab = −Φ_a with θ_b = 1
     dsum_ul = sum((f.length * f.dU_dlnlambda(n) for f in flanking), np.zeros(n))
+    with_psi = model.request.psi is not None  # without a ψ request there is no ψ to move
     return [{"material": m.id, "dL2D_dlnlambda": float(dl2d[i]),
-             "dpsi_dlnlambda": float(dl2d[i] - dsum_ul[i])} for i, m in enumerate(model.materials)]
+             "dpsi_dlnlambda": float(dl2d[i] - dsum_ul[i]) if with_psi else None}
+            for i, m in enumerate(model.materials)]
 
 
 def energy_warnings(model, solution: LevelSolution) -> list[str]:
