@@ -1,9 +1,11 @@
 // The temperature field of an evaluation: the nodal field rasterised through Coldseam's
 // thermal colour map, isotherms, piece outlines, exposed and adiabatic edges, the lowest
-// interior surface temperatures marked, a colour bar in °C and a readout under the cursor.
+// interior surface temperatures marked, air cavities hatched, a colour bar in °C and a readout
+// under the cursor (a cavity's λeq when over one).
 
 import { h, replace, s } from "../dom.js";
 import { buildLocator, locate } from "../lib/barycentric.js";
+import { HATCH_ID, hatchSpec, materialText } from "../lib/cavities.js";
 import { isolines, niceLevels } from "../lib/contour.js";
 import { thermalLut } from "../lib/colormap.js";
 import { fixed } from "../lib/format.js";
@@ -73,13 +75,23 @@ function draw(canvas, overlay, surface, model, view) {
   const area = { x0: 0, y0: 0, x1: width, y1: height };
   const taken = [];
   const markers = minMarkers(model.field, view, taken, area); // marks first: isotherm labels keep clear
-  replace(overlay, pieces(model.field, view), isothermPaths(model, view, taken, area), edges(model, view),
-    markers, scaleBar(view, "m", height));
+  replace(overlay, pieces(model.field, view), cavities(model.field, view),
+    isothermPaths(model, view, taken, area), edges(model, view), markers, scaleBar(view, "m", height));
 }
 
 function pieces(field, view) {
   return s("g", { class: "pieces" }, (field.pieces || []).map((p) => s("path", {
     d: [p.polygon, ...(p.holes || [])].map((ring) => ringPath(view, ring)).join(""), class: "piece" })));
+}
+
+/** Air cavities in Coldseam's hatch; each path names its cavity for tests and tools. */
+function cavities(field, view) {
+  const drawn = (field.cavities || []).filter((c) => (c.rings || []).length);
+  if (!drawn.length) return null;
+  const build = ([tag, attrs, children]) => s(tag, attrs, ...(children || []).map(build));
+  return s("g", { class: "cavities", testid: "field-cavities" }, s("defs", {}, build(hatchSpec())),
+    drawn.map((c) => s("path", { d: c.rings.map((ring) => ringPath(view, ring)).join(""), class: "cavity",
+      fill: `url(#${HATCH_ID})`, "fill-rule": "evenodd", "data-region": c.region })));
 }
 
 function isothermPaths(model, view, taken, area) {
@@ -194,6 +206,6 @@ function hover(event, surface, readout, model, view) {
   const flux = model.field.heat_flux?.[hit.triangle];
   replace(readout, h("strong", {}, `θ ${fixed(theta, 2)} °C`),
     ` at (${fixed(x * 1000, 0)}, ${fixed(y * 1000, 0)}) mm`,
-    mat ? ` · ${mat.id}, λ ${mat.conductivity[0] === mat.conductivity[1] ? mat.conductivity[0] : mat.conductivity.join(" / ")} W/(m·K)` : "",
+    mat ? ` · ${materialText(mat)}` : "",
     Number.isFinite(flux) ? ` · |q| ${fixed(flux, 1)} W/m²` : "");
 }

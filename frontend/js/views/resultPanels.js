@@ -1,10 +1,11 @@
 // The figures of a result: headline tiles (ψ, L2D, fRsi with its verdict, θsi,min), tables of
-// heat flows, ψ terms, condensation check, probes, mesh convergence, the sensitivity chart,
-// warnings and the caution.
+// heat flows, ψ terms (and U_f of a frame), condensation check, air cavities, probes, mesh
+// convergence, the sensitivity chart, warnings and the caution.
 
 import { card, h, s } from "../dom.js";
 import { uTimesL } from "../lib/figures.js";
 import { fixed, percent, pointMm, sig } from "../lib/format.js";
+import { cavityRows } from "../lib/cavities.js";
 import { barLayout, sensitivityBars } from "../lib/sensitivity.js";
 import { pairs, scroller, table } from "./tables.js";
 
@@ -44,16 +45,24 @@ export function headline(result) {
   return h("div", { class: "headline" },
     tile("Linear thermal transmittance ψ", result.psi ? fixed(result.psi.value, 4) : "—", "W/(m·K)", "psi-value",
       psiNote ? h("span", { class: "tile-note" }, psiNote) : null),
-    tile("Thermal coupling coefficient L2D", result.L2D !== undefined ? fixed(result.L2D, 4) : "—", "W/(m·K)", "l2d-value",
-      unbounded && result.L2D === null ? h("span", { class: "tile-note" }, unbounded) : null),
+    tile("Thermal coupling coefficient L2D", result.L2D != null ? fixed(result.L2D, 4) : "—", "W/(m·K)", "l2d-value",
+      result.L2D != null ? null : h("span", { class: "tile-note", testid: "l2d-note" },
+        unbounded && result.L2D === null ? unbounded : l2dReason(result))),
     tile("Temperature factor fRsi", c ? fixed(c.fRsi, 3) : "—", "", "frsi-value",
       h("span", { class: "tile-note" }, verdictBadge(c), " ", c?.not_assessed ? "see the condensation card" : crit)),
     tile("Lowest interior surface temperature θsi,min", fixed(minInterior(result), 2), "°C", "theta-min"));
 }
 
+/** Why a result has no L2D: it is defined between exactly two environments. */
+function l2dReason(result) {
+  const n = Object.keys(result.heat_flows || {}).length;
+  if (n > 2) return `${n} environments: L2D is defined between two; see the coupling coefficients Lij below`;
+  return "not computed for this section";
+}
+
 function heatFlowCard(result) {
   const rows = Object.entries(result.heat_flows || {}).map(([env, q]) => [env, fixed(q, 3), "W/m"]);
-  if (result.L2D !== undefined) rows.push(["L2D", fixed(result.L2D, 5), "W/(m·K)"]);
+  if (result.L2D != null) rows.push(["L2D", fixed(result.L2D, 5), "W/(m·K)"]);
   const body = [pairs(rows)];
   const L = result.coupling_coefficients;
   if (L && typeof L === "object") body.push(couplingTable(L));
@@ -75,7 +84,15 @@ function psiCard(psi) {
   return card("ψ = L2D − Σ U·l",
     scroller(table(["Flanking element", "U W/(m²·K)", "l m", "U·l W/(m·K)"], rows, { testid: "psi-terms" })),
     pairs([["L2D", fixed(psi.L2D, 5), "W/(m·K)"], ["Σ U·l", fixed(psi.sum_UL, 5), "W/(m·K)"],
-      ["ψ", fixed(psi.value, 5), "W/(m·K)"], psi.dimensions ? ["Dimensions", psi.dimensions, ""] : null]));
+      ["ψ", fixed(psi.value, 5), "W/(m·K)"], psi.dimensions ? ["Dimensions", psi.dimensions, ""] : null,
+      psi.frame ? ["U_f (frame, calibration panel)", fixed(psi.frame.u_frame, 4), "W/(m²·K)", "u-frame"] : null]));
+}
+
+function cavitiesCard(cavities) {
+  if (!cavities || !cavities.length) return null;
+  return card(`Air cavities (${cavities.length})`,
+    table(["Cavity", "b mm", "d mm", "Heat flow", "λeq W/(m·K)"], cavityRows(cavities), { testid: "cavity-table" }),
+    h("p", { class: "muted" }, "λeq = d·(ha + hr), ISO 10077-2; b across and d along the heat flow."));
 }
 
 function condensationCard(result) {
@@ -175,6 +192,6 @@ export function warningsCard(result) {
 
 /** The cards beside the field, in reading order. */
 export function figureCards(result) {
-  return [psiCard(result.psi), condensationCard(result), heatFlowCard(result),
+  return [psiCard(result.psi), condensationCard(result), cavitiesCard(result.cavities), heatFlowCard(result),
     probesCard(result.probes), meshCard(result.mesh), sensitivityCard(result)].filter(Boolean);
 }

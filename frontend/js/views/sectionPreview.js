@@ -131,8 +131,8 @@ function hover(event, surface, tip, model, view) {
     inRing(x, y, r.polygon) && !(r.holes || []).some((hole) => inRing(x, y, hole)));
   if (!region) { tip.hidden = true; return; }
   const mat = model.materials.get(region.material) || {};
-  const lam = mat.conductivity !== undefined ? `λ ${lambdaText(mat.conductivity)} W/(m·K)`
-    : `library ${mat.library ?? ""}`;
+  const lam = mat.cavity ? "air cavity: λeq computed per cavity"
+    : mat.conductivity !== undefined ? `λ ${lambdaText(mat.conductivity)} W/(m·K)` : `library ${mat.library ?? ""}`;
   replace(tip, h("strong", {}, region.material), mat.libraryName ? h("span", {}, mat.libraryName) : null,
     h("span", {}, lam));
   tip.hidden = false;
@@ -143,7 +143,8 @@ function hover(event, surface, tip, model, view) {
 function legend(model) {
   const mats = [...model.colours].map(([id, colour]) => {
     const m = model.materials.get(id) || {};
-    const lam = m.conductivity !== undefined ? `λ ${lambdaText(m.conductivity)} W/(m·K)` : `library ${m.library}`;
+    const lam = m.cavity ? "air cavity" : m.conductivity !== undefined
+      ? `λ ${lambdaText(m.conductivity)} W/(m·K)` : `library ${m.library}`;
     return h("li", { title: m.libraryName || m.description || "" }, swatch(colour, "fill"), h("span", {}, id),
       h("span", { class: "muted" }, lam));
   });

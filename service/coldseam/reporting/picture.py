@@ -27,6 +27,7 @@ from matplotlib.tri import Triangulation
 
 from coldseam import CAUTION
 from coldseam.reporting.colours import thermal_colour_map
+from coldseam.reporting.picture_cavities import draw_cavities
 from coldseam.reporting.picture_labels import label_isotherms, occupied_for
 from coldseam.reporting.picture_marks import (
     draw_boundaries,
@@ -88,7 +89,7 @@ def draw(field: dict[str, Any], result: dict[str, Any]) -> Figure:
     tri = Triangulation(points[:, 0] * scale, points[:, 1] * scale, triangles)
     isotherms = _draw_temperature(figure.add_axes(layout.colour_bar), ax, tri, theta)
     draw_outlines(ax, field, scale)
-    handles = draw_boundaries(ax, field, scale)
+    handles = draw_boundaries(ax, field, scale) + draw_cavities(ax, field, scale)
     _frame(ax, unit, low * scale, high * scale)
     renderer = figure.canvas.get_renderer()
     occupied = occupied_for(ax, renderer)

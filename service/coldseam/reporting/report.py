@@ -31,6 +31,7 @@ from coldseam.reporting.html_parts import (
     table,
     tag,
 )
+from coldseam.reporting.report_cavities import cavities_block, frame_block
 from coldseam.reporting.report_results import (
     condensation_block,
     convergence_block,
@@ -60,6 +61,8 @@ def render_report(result: dict, request: dict, svg: str, *, generated: str | Non
         _inputs(sec, request, result),
         results_block(result, sec, unit),
         psi_block(result),
+        frame_block(result),
+        cavities_block(result, unit),
         condensation_block(result, unit),
         convergence_block(result),
         sensitivities_block(result),
@@ -160,7 +163,9 @@ def _materials_table(sec: dict, result: dict) -> Html:
         own = as_dict(given.get(str(m.get("id"))))
         source = m.get("source") or (f"library: {own['library']}" if own.get("library")
                                      else "given in the request")
-        rows.append([m.get("id"), _conductivity(m.get("conductivity", own.get("conductivity"))),
+        lam = ("air cavity: λeq per cavity, see Air cavities" if m.get("cavity") or own.get("cavity")
+               else _conductivity(m.get("conductivity", own.get("conductivity"))))
+        rows.append([m.get("id"), lam,
                      source, own.get("description") or ""])
     return table(["Material", "λ W/(m·K)", "Source", "Description"], rows, "Materials")
 

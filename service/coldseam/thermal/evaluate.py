@@ -20,7 +20,7 @@ from coldseam import CAUTION, ENGINE_VERSION
 from coldseam.errors import LimitExceeded
 from coldseam.meshing.estimate import check_coarsest
 from coldseam.schema.evaluation import EvaluationRequest
-from coldseam.thermal import results, singular
+from coldseam.thermal import results, singular, units
 from coldseam.thermal.field import field_document
 from coldseam.thermal.levels import (
     ISO_RULE,
@@ -132,13 +132,15 @@ def _result(model, flanking, pair, levels, solution: LevelSolution, warnings) ->
         out["sensitivities"] = results.sensitivities(model, solution, flanking, pair)
     warnings = warnings + results.energy_warnings(model, solution)
     warnings += results.cutoff_warnings(model, solution)
-    out["materials"] = [{"id": m.id, "conductivity": list(m.conductivity), "source": m.source}
-                        for m in model.materials]
+    warnings = units.plausibility_warnings(model.section) + warnings
+    out["materials"] = results.materials_block(model)
+    out["cavities"] = [{k: v for k, v in c.items() if k != "material_index" and k[0] != "_"}
+                       for c in model.cavities]
     out["warnings"] = warnings
     out["caution"] = CAUTION
     out["engine_version"] = ENGINE_VERSION
     out["name"] = model.section.name
-    return _jsonable(out)
+    return units.add_section_coordinates(_jsonable(out), model.section)
 
 
 def _without_meaningless(out: dict, meaning: singular.Meaning, levels, model) -> dict:

@@ -104,11 +104,25 @@ def psi_block(model, solution, flanking: list[FlankingU], pair) -> dict | None:
     l2d = float(0.5 * (coupling[pair] + coupling[pair[::-1]]))
     sum_ul = sum(f.u_value * f.length for f in flanking)
     ids = model.env_ids
-    return {
+    out = {
         "value": l2d - sum_ul, "L2D": l2d, "sum_UL": sum_ul, "dimensions": psi.dimensions,
         "environments": [ids[pair[0]], ids[pair[1]]],
         "flanking": [_flanking_dict(model, f) for f in flanking],
     }
+    if psi.frame is not None:
+        out["frame"] = frame_block(psi.frame, l2d, model.section.scale)
+    return out
+
+
+def frame_block(frame, l2d: float, scale: float) -> dict:
+    """U_f = (L2D − U_p·b_p) / b_f, W/(m²·K) (ISO 10077-2 calibration panel); widths in m."""
+    panel_width, frame_width = frame.panel.width * scale, frame.frame_width * scale
+    panel_flow = frame.panel.u_value * panel_width
+    return {"u_frame": (l2d - panel_flow) / frame_width, "L2D": l2d,
+            "frame_width": frame_width, "panel": {"width": panel_width,
+                                                  "u_value": frame.panel.u_value,
+                                                  "UL": panel_flow},
+            "source": "U_f = (L2D − U_p·b_p)/b_f, ISO 10077-2 calibration-panel method"}
 
 
 def _flanking_dict(model, f: FlankingU) -> dict:
@@ -192,6 +206,17 @@ def interior_weightings(model: ThermalModel, run: Run) -> dict:
     return out
 
 
+def materials_block(model) -> list[dict]:
+    """The section's materials with λ and source; a cavity material's λeq is per cavity
+    (listed under ``cavities``), so its conductivity here is None."""
+    out = []
+    for section_material, use in zip(model.section.materials, model.materials, strict=False):
+        cavity = section_material.cavity is not None
+        out.append({"id": use.id, "conductivity": None if cavity else list(use.conductivity),
+                    "source": use.source, **({"cavity": True} if cavity else {})})
+    return out
+
+
 def sensitivities(model, solution: LevelSolution, flanking, pair) -> list[dict]:
     """∂L2D/∂ln λ and, when ψ is requested, ∂ψ/∂ln λ per material (W/(m·K) per unit
     relative change of λ)."""
@@ -205,9 +230,11 @@ def sensitivities(model, solution: LevelSolution, flanking, pair) -> list[dict]:
     dl2d = -dflow  # L_ab = −Φ_a with θ_b = 1
     dsum_ul = sum((f.length * f.dU_dlnlambda(n) for f in flanking), np.zeros(n))
     with_psi = model.request.psi is not None  # without a ψ request there is no ψ to move
+    cavity_bases = {k for k, m in enumerate(model.section.materials) if m.cavity is not None}
     return [{"material": m.id, "dL2D_dlnlambda": float(dl2d[i]),
              "dpsi_dlnlambda": float(dl2d[i] - dsum_ul[i]) if with_psi else None}
-            for i, m in enumerate(model.materials)]
+            for i, m in enumerate(model.materials)
+            if i not in cavity_bases]  # a cavity material's λ is per cavity, listed as such
 
 
 def energy_warnings(model, solution: LevelSolution) -> list[str]:
