@@ -27,6 +27,8 @@ STATUS_BY_KIND = {
     "SolveFailed": 500,
     "WorkerCrashed": 500,
     "StoreFailed": 500,
+    "StoreFull": 507,
+    "StoreUnavailable": 503,
     "Timeout": 504,
     "Interrupted": 503,
     "Cancelled": 409,
@@ -40,6 +42,18 @@ class BodyTooLarge(HTTPException):
 
     def __init__(self, limit: int) -> None:
         super().__init__(413, f"the request body is larger than the {limit} byte limit")
+        self.limit = limit
+
+    def __str__(self) -> str:
+        return str(self.detail)
+
+
+class BodySlow(HTTPException):
+    """The request body did not arrive within ``body_timeout`` seconds (HTTP 408)."""
+
+    def __init__(self, limit: float) -> None:
+        super().__init__(408, f"the request body did not arrive within {limit:g} s; send it "
+                         "at once (this server does not wait on slow uploads)")
         self.limit = limit
 
     def __str__(self) -> str:

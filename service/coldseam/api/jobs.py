@@ -3,15 +3,18 @@ evaluations in flight, tied together (no FastAPI here)."""
 
 from __future__ import annotations
 
+import dataclasses
 import logging
 import sqlite3
 import threading
 from concurrent.futures import Future
 from dataclasses import dataclass, field
+from typing import Any
 
 from coldseam.api.pool import QueueFull, WorkerPool
 from coldseam.api.slot import Job, Outcome, failure
 from coldseam.api.store import Record, Store, storage_key
+from coldseam.errors import StoreFailure
 from coldseam.schema.evaluation import EvaluationRequest, request_digest
 
 log = logging.getLogger(__name__)
@@ -52,6 +55,9 @@ class Evaluations:
     def __init__(self, store: Store, pool: WorkerPool) -> None:
         self.store, self.pool = store, pool
         self._live: dict[str, Live] = {}
+        #: Outcomes that could not be stored (disk full, read-only): answered from here, so
+        #: that a client polling the evaluation sees it failed instead of running for ever.
+        self._unstored: dict[str, dict[str, Any]] = {}
         self._lock = threading.Lock()
 
     def submit(self, owner: str, request: EvaluationRequest, request_text: str,
@@ -69,7 +75,9 @@ class Evaluations:
             if record is not None and record.status == "done":
                 return Submitted(evaluation_id, key, None)
             self.store.queue(key, evaluation_id, owner, request.section.name, request_text)
+            self._unstored.pop(key, None)
             live = self._live[key] = Live()
+        self.flush_unstored()  # the store took a write: it may take the failures it could not
         job = Job(key=key, request=request.model_dump(mode="json"), label=request_id,
                   on_start=self._started, on_progress=self._progressed,
                   on_finish=self._finished)
@@ -81,6 +89,20 @@ class Evaluations:
         log.info("evaluation %s queued (request %s)", evaluation_id, request_id)
         return Submitted(evaluation_id, key, live.done)
 
+    def flush_unstored(self) -> None:
+        """Store the failures that could not be stored when they happened, where it now can."""
+        with self._lock:
+            pending = list(self._unstored.items())
+        for key, error in pending:
+            stored = {k: v for k, v in error.items() if k != "unstored"}
+            try:
+                self.store.finish(key, None, None, stored)
+            except (StoreFailure, sqlite3.Error):
+                return
+            with self._lock:
+                if self._unstored.get(key) is error:
+                    del self._unstored[key]
+
     def live(self, key: str) -> Live | None:
         with self._lock:
             return self._live.get(key)
@@ -88,19 +110,27 @@ class Evaluations:
     def record(self, owner: str, evaluation_id: str) -> tuple[str, Record | None, Live | None]:
         key = storage_key(owner, evaluation_id)
         live = self.live(key)  # first: the store is written before the live state goes
-        return key, self.store.get(key), live
+        record = self.store.get(key)
+        error = self._unstored.get(key)
+        if live is None and record is not None and error is not None \
+                and record.status in ("queued", "running"):
+            record = dataclasses.replace(record, status="failed", error=error)
+        return key, record, live
 
     def _forget(self, key: str) -> None:
         with self._lock:
             self._live.pop(key, None)
-        self.store.delete(key)
+        try:
+            self.store.delete(key)
+        except (StoreFailure, sqlite3.Error) as exc:  # left queued: marked failed at restart
+            log.error("could not remove %s from the store: %s", key[:12], exc)
 
     def _started(self, job: Job) -> None:
         with self._lock:
             self._live[job.key].status = "running"
         try:
             self.store.mark_running(job.key)
-        except sqlite3.Error as exc:  # the live state still says running
+        except (StoreFailure, sqlite3.Error) as exc:  # the live state still says running
             log.error("could not record %s as running: %s", job.key[:12], exc)
 
     def _progressed(self, job: Job, stage: str, fraction: float) -> None:
@@ -114,6 +144,8 @@ class Evaluations:
         outcome = self._store_outcome(job, outcome)
         with self._lock:
             live = self._live.pop(job.key)
+            if outcome.error is not None and outcome.error.get("unstored"):
+                self._unstored[job.key] = outcome.error
         if not outcome.ok:
             kind = outcome.error["kind"]
             level = logging.INFO if kind in USER_ERRORS else logging.WARNING
@@ -130,11 +162,22 @@ class Evaluations:
             log.error("result of %s is not plain JSON: %s", job.key[:12], exc)
             outcome = failure("SolveFailed", f"the engine returned a result that is not "
                               f"plain JSON ({exc}); this is an engine fault")
+        except StoreFailure as exc:
+            log.error("result of %s could not be stored: %s", job.key[:12], exc.message)
+            return _unstored(type(exc).__name__, exc.message, job.label)
         except sqlite3.Error as exc:
             log.error("result of %s could not be stored: %s", job.key[:12], exc)
-            return failure("StoreFailed", f"the result could not be stored ({exc})")
+            return _unstored("StoreFailed", f"the result could not be stored ({exc})", job.label)
         try:
             self.store.finish(job.key, None, None, outcome.error)
-        except sqlite3.Error as exc:
+        except (StoreFailure, sqlite3.Error) as exc:
             log.error("failure of %s could not be stored: %s", job.key[:12], exc)
+            outcome.error["unstored"] = "1"
         return outcome
+
+
+def _unstored(kind: str, message: str, request_id: str) -> Outcome:
+    """The failure answered for an outcome the store could not take."""
+    outcome = failure(kind, message)
+    outcome.error.update(request_id=request_id, unstored="1")
+    return outcome

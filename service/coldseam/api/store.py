@@ -10,15 +10,20 @@ from __future__ import annotations
 
 import hashlib
 import json
+import os
 import sqlite3
+import tempfile
 import threading
 import time
 import zlib
+from collections.abc import Iterator
+from contextlib import contextmanager
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
 from coldseam.api.batch_store import BATCH_SCHEMA, BatchTables
+from coldseam.errors import StoreFull, StoreUnavailable
 
 SCHEMA = """
 CREATE TABLE IF NOT EXISTS evaluations (
@@ -59,15 +64,47 @@ class Record:
     error: dict[str, Any] | None
 
 
+def check_writable(folder: Path) -> None:
+    """StoreUnavailable when ``folder`` cannot be made or written (read-only, no access)."""
+    try:
+        folder.mkdir(parents=True, exist_ok=True)
+        handle, name = tempfile.mkstemp(prefix=".write-check-", dir=folder)
+        os.close(handle)
+        os.unlink(name)
+    except OSError as exc:
+        raise StoreUnavailable(f"the data folder {folder} cannot be written "
+                               f"({exc.strerror or exc}): results could not be stored") from None
+
+
+@contextmanager
+def store_faults() -> Iterator[None]:
+    """SQLite's disk faults as typed errors: full -> StoreFull; read-only, I/O error, cannot
+    open -> StoreUnavailable. Other sqlite3 errors (bugs of ours) pass unchanged."""
+    try:
+        yield
+    except sqlite3.OperationalError as exc:
+        name = getattr(exc, "sqlite_errorname", "") or ""
+        text = str(exc)
+        if name == "SQLITE_FULL" or "is full" in text:
+            raise StoreFull("the disk holding results is full: the result could not be "
+                            "stored; try again when space has been freed") from exc
+        if name.startswith(("SQLITE_READONLY", "SQLITE_IOERR", "SQLITE_CANTOPEN")) or \
+                any(w in text for w in ("readonly", "I/O error", "unable to open")):
+            raise StoreUnavailable(f"the result store cannot be written ({text}); try again "
+                                   "later") from exc
+        raise
+
+
 class Store(BatchTables):
     """The evaluations table (and the batch tables, ``BatchTables``) of one SQLite database
     file."""
 
     def __init__(self, path: Path) -> None:
-        path.parent.mkdir(parents=True, exist_ok=True)
-        self._conn = sqlite3.connect(path, check_same_thread=False, isolation_level=None)
+        check_writable(path.parent)
+        with store_faults():
+            self._conn = sqlite3.connect(path, check_same_thread=False, isolation_level=None)
         self._lock = threading.Lock()
-        with self._lock:
+        with self._lock, store_faults():
             self._conn.execute("PRAGMA journal_mode=WAL")
             # FULL: a result answered 200 is on disk, even if the machine loses power next
             # (NORMAL keeps it across a killed process only); one fsync per result is cheap.
@@ -80,14 +117,15 @@ class Store(BatchTables):
             self._conn.close()
 
     def _write(self, sql: str, params: tuple) -> None:
-        with self._lock:
+        with self._lock, store_faults():
             self._conn.execute("BEGIN IMMEDIATE")
             try:
                 self._conn.execute(sql, params)
+                self._conn.execute("COMMIT")
             except sqlite3.Error:
-                self._conn.execute("ROLLBACK")
+                if self._conn.in_transaction:
+                    self._conn.execute("ROLLBACK")
                 raise
-            self._conn.execute("COMMIT")
 
     def queue(self, key: str, evaluation_id: str, owner: str, name: str | None,
               request_text: str) -> None:
@@ -123,7 +161,7 @@ class Store(BatchTables):
     def interrupt_unfinished(self, message: str) -> int:
         """Mark evaluations a previous server left queued or running as failed."""
         error = _dumps({"kind": "Interrupted", "message": message, "field": ""})
-        with self._lock:
+        with self._lock, store_faults():
             cursor = self._conn.execute(
                 "UPDATE evaluations SET status='failed', error=?, updated_at=? "
                 "WHERE status IN (?, ?)", (error, time.time(), *UNFINISHED))

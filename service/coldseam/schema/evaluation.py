@@ -186,7 +186,18 @@ def request_digest(request: EvaluationRequest) -> str:
     from coldseam import ENGINE_VERSION
 
     canonical = json.dumps(
-        {"engine": ENGINE_VERSION, "request": request.model_dump(mode="json")},
+        {"engine": ENGINE_VERSION, "request": _no_negative_zero(request.model_dump(mode="json"))},
         sort_keys=True, separators=(",", ":"),
     )
     return hashlib.sha256(canonical.encode()).hexdigest()[:32]
+
+
+def _no_negative_zero(data: Any) -> Any:
+    """``data`` with every -0.0 made 0.0 (the same number, so the same id)."""
+    if isinstance(data, float):
+        return 0.0 if data == 0 else data
+    if isinstance(data, dict):
+        return {k: _no_negative_zero(v) for k, v in data.items()}
+    if isinstance(data, list | tuple):
+        return [_no_negative_zero(v) for v in data]
+    return data
