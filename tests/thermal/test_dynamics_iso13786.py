@@ -24,8 +24,7 @@ import math
 
 import numpy as np
 import pytest
-
-from tests.sections import layered_wall, run
+from sections import layered_wall, run
 
 TARGET = 5e-3  # the dynamic certificate's target (levels until changes < 0.5 %)
 

@@ -18,6 +18,7 @@ import numpy as np
 import pytest
 import scipy.sparse.linalg as spla
 import skfem
+from sections import run
 from skfem.helpers import dot, grad
 
 from coldseam.fem.mesh import refine_uniform
@@ -27,7 +28,6 @@ from coldseam.thermal.levels import mesh_levels
 from coldseam.thermal.model import prepare
 from coldseam.thermal.solve import solve_level, unit_ambient
 from coldseam.thermal.transient import TransientRun
-from tests.sections import run
 
 SECTION = {  # an invented slab edge: concrete, external insulation, a steel plate through it
     "unit": "mm",

@@ -12,11 +12,11 @@ import numpy as np
 import pytest
 from scipy.integrate import quad
 from scipy.special import erfcx
+from sections import layered_wall, run
 
 from coldseam.errors import InvalidSection
 from coldseam.schema import parse_request
 from coldseam.templates import build
-from tests.sections import layered_wall, run
 
 CONCRETE = {"conductivity": 2.0, "density": 2400, "specific_heat": 1000}  # λ, ρ, c
 
