@@ -3,7 +3,7 @@
 Each row is keyed by ``storage_key(owner, id)``, so the same request sent with two API keys
 gives two private rows, and an id alone does not reach another key's row. The request is kept
 exactly as the user sent it (``request`` text), beside the result and the temperature field
-(zlib-compressed compact JSON).
+(binary arrays, made into JSON when asked for: coldseam.api.fieldpack).
 """
 
 from __future__ import annotations
@@ -13,10 +13,11 @@ import json
 import sqlite3
 import threading
 import time
-import zlib
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
+
+from coldseam.api import fieldpack
 
 SCHEMA = """
 CREATE TABLE IF NOT EXISTS evaluations (
@@ -108,7 +109,7 @@ class Store:
                error: dict[str, Any] | None) -> None:
         """Store the outcome of an evaluation in one transaction."""
         status = "failed" if error is not None else "done"
-        packed = zlib.compress(_compact(field).encode(), 6) if field is not None else None
+        packed = fieldpack.pack(field) if field is not None else None
         self._write(
             "UPDATE evaluations SET status=?, updated_at=?, summary=?, result=?, field=?, "
             "error=? WHERE key=?",
@@ -133,11 +134,12 @@ class Store:
         return _record(row) if row else None
 
     def field(self, key: str) -> bytes | None:
-        """The stored temperature field as compact JSON bytes."""
+        """The stored temperature field as compact JSON bytes (made from the stored arrays
+        here, when it is asked for: see coldseam.api.fieldpack)."""
         with self._lock:
             row = self._conn.execute("SELECT field FROM evaluations WHERE key=?",
                                      (key,)).fetchone()
-        return zlib.decompress(row[0]) if row and row[0] is not None else None
+        return fieldpack.to_json(row[0]) if row and row[0] is not None else None
 
     def page(self, owner: str, limit: int, offset: int) -> tuple[list[Record], int]:
         """``limit`` records of ``owner`` from ``offset``, newest first, and the total."""
