@@ -79,7 +79,7 @@ def _certify(model: ThermalModel, flanking: list[FlankingU], pair, report: Progr
     levels: list[LevelFigures] = []
     warnings: list[str] = []
     solution: LevelSolution | None = None
-    mesh, probes = first_level(model.classified)
+    mesh, probes = first_level(model.classified, options.accuracy)
     for k in range(options.max_levels):
         if mesh.nodes > options.max_nodes:
             if solution is None:
