@@ -59,6 +59,14 @@ def test_the_plain_install_factorises_by_ldl_and_agrees_with_lu(monkeypatch):
         expected).max()
 
 
+def test_the_upper_triangle_is_scipys():
+    matrix = conduction_like(12)
+    upper = solvers.upper_triangle(matrix)
+    expected = sp.triu(matrix, format="csc")
+    assert upper.has_sorted_indices
+    assert abs(upper - expected).max() == 0 and upper.nnz >= expected.nnz
+
+
 def test_a_singular_matrix_falls_back_from_ldl_to_lu(monkeypatch):
     monkeypatch.setenv("COLDSEAM_CHOLMOD", "0")
     singular = sp.csc_matrix(np.array([[1.0, -1.0], [-1.0, 1.0]]))

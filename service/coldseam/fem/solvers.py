@@ -76,7 +76,7 @@ class LdlSolver:
     zero pivot (a singular matrix) raises RuntimeError, and the caller falls back to LU."""
 
     def __init__(self, matrix: sp.csc_matrix, qdldl) -> None:
-        self.factor = qdldl.Solver(matrix)
+        self.factor = qdldl.Solver(upper_triangle(matrix), upper=True)
 
     def solve(self, rhs: np.ndarray) -> np.ndarray:
         if rhs.ndim == 1:
@@ -178,6 +178,19 @@ class NearbySolver:
             beta = np.divide(rz_new, rz, out=np.zeros_like(rz), where=rz != 0)
             d, rz = z + beta * d, rz_new
         return x
+
+
+def upper_triangle(matrix: sp.csc_matrix) -> sp.csc_matrix:
+    """The upper triangle (row ≤ column) of a symmetric CSC matrix, by a mask on its arrays
+    (scipy's ``triu`` goes through COO: 4× slower at 4k unknowns); indices sorted."""
+    if not matrix.has_sorted_indices:
+        matrix = matrix.sorted_indices()
+    n = matrix.shape[0]
+    column = np.repeat(np.arange(n, dtype=matrix.indices.dtype), np.diff(matrix.indptr))
+    keep = matrix.indices <= column
+    indptr = np.zeros(n + 1, dtype=matrix.indptr.dtype)
+    np.cumsum(np.bincount(column[keep], minlength=n), out=indptr[1:])
+    return sp.csc_matrix((matrix.data[keep], matrix.indices[keep], indptr), shape=matrix.shape)
 
 
 def symmetric_view(matrix: sp.spmatrix, layout: str) -> sp.spmatrix:

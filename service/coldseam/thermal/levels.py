@@ -25,8 +25,8 @@ import numpy as np
 from coldseam.fem.adapt import longest_edge_first, refine_marked
 from coldseam.fem.mesh import Mesh, refine_uniform
 from coldseam.geometry.outline import Classified
-from coldseam.meshing.gmsh_mesher import triangulate
 from coldseam.meshing.estimate import planned_nodes
+from coldseam.meshing.gmsh_mesher import triangulate
 from coldseam.meshing.sizes import plan
 
 TARGETS = {"default": (1e-3, 0.01), "iso": (1e-2, 0.1)}
@@ -101,11 +101,15 @@ def refinement_depths(eta: np.ndarray, order: int, new_nodes: float) -> np.ndarr
     step = math.log(4.0 ** (order + 1))
     log_eta = np.log(np.maximum(eta, eta.max() * 1e-300))
 
+    nodes_added = (4.0 ** np.arange(MAX_PASSES + 1) - 1) / 2  # per depth, as 4^d − 1 over 2
+
     def depths(log_tau: float) -> np.ndarray:
         return np.clip(np.ceil((log_eta - log_tau) / step), 0, MAX_PASSES).astype(int)
 
     def added(log_tau: float) -> float:
-        return float(((4.0 ** depths(log_tau) - 1) / 2).sum())
+        d = np.ceil((log_eta - log_tau) / step)
+        np.clip(d, 0, MAX_PASSES, out=d)
+        return float(nodes_added[d.astype(np.intp)].sum())
 
     high = float(log_eta.max())  # nothing refined
     low = high - (MAX_PASSES + 1) * step - (log_eta.max() - log_eta.min())  # all, fully
