@@ -76,15 +76,25 @@ class Store:
         with self._lock:
             self._conn.close()
 
-    def _write(self, sql: str, params: tuple) -> None:
+    def _write(self, sql: str, params: tuple, durable: bool = True) -> None:
+        """One transaction. ``durable=False`` for the steps before a result (queued, running,
+        a queue entry taken back): they skip the WAL's fsync (4-5 ms each on this machine's
+        busy disk), and the next durable commit writes them too; a server that restarts marks
+        unfinished rows as interrupted anyway."""
         with self._lock:
-            self._conn.execute("BEGIN IMMEDIATE")
+            if not durable:
+                self._conn.execute("PRAGMA synchronous=NORMAL")
             try:
-                self._conn.execute(sql, params)
-            except sqlite3.Error:
-                self._conn.execute("ROLLBACK")
-                raise
-            self._conn.execute("COMMIT")
+                self._conn.execute("BEGIN IMMEDIATE")
+                try:
+                    self._conn.execute(sql, params)
+                except sqlite3.Error:
+                    self._conn.execute("ROLLBACK")
+                    raise
+                self._conn.execute("COMMIT")
+            finally:
+                if not durable:
+                    self._conn.execute("PRAGMA synchronous=FULL")
 
     def queue(self, key: str, evaluation_id: str, owner: str, name: str | None,
               request_text: str) -> None:
@@ -95,15 +105,15 @@ class Store:
             "request) VALUES (?, ?, ?, 'queued', ?, ?, ?, ?) ON CONFLICT(key) DO UPDATE SET "
             "status='queued', created_at=excluded.created_at, updated_at=excluded.updated_at, "
             "request=excluded.request, result=NULL, field=NULL, error=NULL, summary=NULL",
-            (key, evaluation_id, owner, name, now, now, request_text),
+            (key, evaluation_id, owner, name, now, now, request_text), durable=False,
         )
 
     def delete(self, key: str) -> None:
-        self._write("DELETE FROM evaluations WHERE key=?", (key,))
+        self._write("DELETE FROM evaluations WHERE key=?", (key,), durable=False)
 
     def mark_running(self, key: str) -> None:
         self._write("UPDATE evaluations SET status='running', updated_at=? WHERE key=?",
-                    (time.time(), key))
+                    (time.time(), key), durable=False)
 
     def finish(self, key: str, result: dict[str, Any] | None, field: dict[str, Any] | None,
                error: dict[str, Any] | None) -> None:
