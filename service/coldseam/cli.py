@@ -44,6 +44,9 @@ def build_parser() -> argparse.ArgumentParser:
     hash_key = commands.add_parser("hash-key", help="print the sha256 digest of an API key "
                                    "read from standard input, for COLDSEAM_API_KEY_HASHES_FILE")
     hash_key.set_defaults(command=cmd_hash_key)
+    from coldseam.batch_cli import add_batch_command
+
+    add_batch_command(commands)
     return parser
 
 

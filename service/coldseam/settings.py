@@ -51,6 +51,9 @@ class Settings(BaseSettings):
     max_regions: int = Field(default=2_000, ge=1)
     max_nodes: int = Field(default=1_000_000, ge=100,
                            description="Largest `options.max_nodes` a request may ask for.")
+    max_batch_items: int = Field(default=5_000, ge=1, le=1_000_000,
+                                 description="Items of one batch, a grid's counted before it "
+                                 "is expanded (more: 413).")
 
     api_keys: str | None = Field(default=None, description="Comma-separated bearer keys.")
     api_key_hashes_file: Path | None = Field(

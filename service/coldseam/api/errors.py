@@ -29,6 +29,7 @@ STATUS_BY_KIND = {
     "StoreFailed": 500,
     "Timeout": 504,
     "Interrupted": 503,
+    "Cancelled": 409,
 }
 SERVER_FAULTS = {"SolveFailed", "WorkerCrashed", "StoreFailed"}
 

@@ -194,3 +194,18 @@ INVALID: dict[str, Any] = {
     "kind": "InvalidSection",
     "request_id": "3f2a9c0d1b7e4a55",
 }
+
+BATCH: dict[str, Any] = {
+    "name": "Harrowgate schedule (invented)",
+    "items": [
+        {"id": "J2", "template": "floor_slab", "parameters": {"insulation_thickness": 160},
+         "length": 64},
+        {"id": "J3", "template": "wall_corner", "length": 28.8},
+    ],
+    "grid": {"template": "floor_slab",
+             "parameters": {"insulation_thickness": [100, 160, 200],
+                            "slab_thickness": [200, 250]}},
+}
+BATCH_CSV = ("id,template,length,insulation_thickness\n"
+             "J2 slab edge,floor_slab,64,160\n"
+             "J3 corners,wall_corner,28.8,\n")

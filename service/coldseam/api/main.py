@@ -13,6 +13,8 @@ from fastapi.middleware.gzip import GZipMiddleware
 
 from coldseam import ENGINE_VERSION, __version__
 from coldseam.api import (
+    batch_report,
+    batches,
     catalogue,
     docs,
     errors,
@@ -24,6 +26,7 @@ from coldseam.api import (
     pictures,
 )
 from coldseam.api.auth import load_keys
+from coldseam.api.batch_runner import BatchRunner
 from coldseam.api.deps import SettingsDep, get_owner
 from coldseam.api.jobs import Evaluations
 from coldseam.api.middleware import ServiceMiddleware
@@ -53,11 +56,15 @@ async def lifespan(app: FastAPI) -> AsyncIterator[None]:
                       settings.prestart_workers, settings.worker_memory_mb * 2**20)
     pool.start()
     app.state.evaluations = Evaluations(store, pool)
+    app.state.batches = BatchRunner(app.state.evaluations, settings)
+    if resumed := app.state.batches.start():
+        log.warning("%d unfinished batch items of an earlier run sent again", resumed)
     log.info("serving with %d workers, data in %s, %s", settings.workers, settings.data_dir,
              "open access" if app.state.keys.open else "API keys required")
     try:
         yield
     finally:
+        await run_in_threadpool(app.state.batches.stop)
         await run_in_threadpool(pool.shutdown)
         store.close()
 
@@ -71,7 +78,7 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     else:
         settings = get_settings()
     api = APIRouter(prefix="/api/v1", dependencies=[Depends(get_owner)])
-    for module in (evaluations, pictures, imports, catalogue):
+    for module in (evaluations, pictures, imports, catalogue, batches, batch_report):
         api.include_router(module.router)
     app.include_router(api)
     fallback.install(app)

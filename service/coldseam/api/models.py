@@ -64,3 +64,19 @@ class Health(BaseModel):
     engine_version: str
     workers: int
     auth: Literal["open", "keys"]
+
+
+class BatchAccepted(BaseModel):
+    id: str
+    status: Status
+    location: str = Field(description="Where to GET the batch.")
+    items: int = Field(description="How many items the batch has.")
+
+
+class BatchPage(BaseModel):
+    """The caller's batches: each as ``GET /api/v1/batches/{id}`` without its items."""
+
+    items: list[dict]
+    total: int
+    limit: int
+    offset: int

@@ -18,6 +18,7 @@ from pathlib import Path
 from typing import Any
 
 from coldseam.api import fieldpack
+from coldseam.api.batch_store import BATCH_SCHEMA, BatchTables
 
 SCHEMA = """
 CREATE TABLE IF NOT EXISTS evaluations (
@@ -58,8 +59,9 @@ class Record:
     error: dict[str, Any] | None
 
 
-class Store:
-    """The evaluations table of one SQLite database file."""
+class Store(BatchTables):
+    """The evaluations table (and the batch tables, ``BatchTables``) of one SQLite database
+    file."""
 
     def __init__(self, path: Path) -> None:
         path.parent.mkdir(parents=True, exist_ok=True)
@@ -71,6 +73,7 @@ class Store:
             # (NORMAL keeps it across a killed process only); one fsync per result is cheap.
             self._conn.execute("PRAGMA synchronous=FULL")
             self._conn.executescript(SCHEMA)
+            self._conn.executescript(BATCH_SCHEMA)
 
     def close(self) -> None:
         with self._lock:
