@@ -14,7 +14,8 @@ def figures_from_result(result: dict) -> dict:
     flows = result["heat_flows"]
     return {
         "nodes": result["mesh"]["nodes"], "dofs": result["mesh"]["dofs"],
-        "heat_flow": sum(flows[k] for k in interior) if interior else None,
+        "heat_flow": sum(flows[k] for k in interior)
+        if interior and all(flows[k] is not None for k in interior) else None,  # None: singular
         "L2D": result.get("L2D"),
         "theta_si_min": min(result["surfaces"][k]["min_temperature"] for k in interior)
         if interior else None,

@@ -56,3 +56,30 @@ def corner(thickness=300.0, leg=2000.0, lam=1.0, rsi=0.0, rse=0.0, insulation=No
             {"environment": "inside", "surface_resistance": rsi, "path": [[L, t], [t, t], [t, L]]},
         ],
     }
+
+
+def cavity_frame(columns=2, rows=1, cavity=None, solid_lambda=None, pitch=20.0, wall=4.0):
+    """A PVC-like block (λ 0.17) of ``columns × rows`` rectangular air cavities, each
+    ``pitch - wall`` mm square with ``wall`` mm webs; heat flows across x (interior at the
+    right). ``cavity`` is the cavity block of the air material; ``solid_lambda`` replaces the
+    cavity by a solid of that λ (same regions, same order)."""
+    width, height = columns * pitch + wall, rows * pitch + wall
+    air = ({"id": "air", "conductivity": solid_lambda} if solid_lambda is not None
+           else {"id": "air", "cavity": cavity or {}})
+    regions = [{"material": "pvc", "polygon": [[0, 0], [width, 0], [width, height], [0, height]]}]
+    for i in range(columns):
+        for j in range(rows):
+            x, y = wall + i * pitch, wall + j * pitch
+            side = pitch - wall
+            regions.append({"material": "air", "polygon": [[x, y], [x + side, y],
+                                                           [x + side, y + side], [x, y + side]]})
+    return {
+        "unit": "mm", "materials": [{"id": "pvc", "conductivity": 0.17}, air],
+        "regions": regions,
+        "environments": [{"id": "inside", "temperature": 20, "side": "interior"},
+                         {"id": "outside", "temperature": 0, "side": "exterior"}],
+        "boundaries": [
+            {"environment": "outside", "surface_resistance": 0.04, "path": [[0, 0], [0, height]]},
+            {"environment": "inside", "surface_resistance": 0.13,
+             "path": [[width, 0], [width, height]]}],
+    }

@@ -52,12 +52,16 @@ async function readBody(response) {
 }
 
 /** Fetch `path` under the API base; `json` or `form` is the body. Resolves {status, data}. */
-export async function call(path, { method = "GET", json, form, signal } = {}) {
+export async function call(path, { method = "GET", json, form, text, type, signal } = {}) {
   const init = { method, signal, headers: headers({ Accept: "application/json" }) };
   if (json !== undefined) {
     init.body = JSON.stringify(json);
     init.headers["Content-Type"] = "application/json";
   } else if (form) init.body = form;
+  else if (text !== undefined) {
+    init.body = text;
+    init.headers["Content-Type"] = type || "text/plain";
+  }
   let response;
   try {
     response = await fetch(`${BASE}/${path}`, init);
@@ -117,4 +121,24 @@ export async function blobUrl(url) {
 /** Address of an evaluation's own resource (picture, report) for links. */
 export function evaluationUrl(id, tail) {
   return `${BASE}/evaluations/${encodeURIComponent(id)}/${tail}`;
+}
+
+/** Start a batch: a batch document (JSON), or a CSV schedule as text. Resolves {id, ...}. */
+export function startBatch({ json, csv, name }) {
+  const query = name ? `?name=${encodeURIComponent(name)}` : "";
+  const body = csv !== undefined ? { text: csv, type: "text/csv" } : { json };
+  return call(`batches${query}`, { method: "POST", ...body }).then((r) => r.data);
+}
+
+export function getBatch(id, signal) {
+  return call(`batches/${encodeURIComponent(id)}?limit=1000`, { signal }).then((r) => r.data);
+}
+
+export function cancelBatch(id) {
+  return call(`batches/${encodeURIComponent(id)}/cancel`, { method: "POST" }).then((r) => r.data);
+}
+
+/** Address of a batch's own resource (results.csv, results.xlsx, report) for links. */
+export function batchUrl(id, tail) {
+  return `${BASE}/batches/${encodeURIComponent(id)}/${tail}`;
 }

@@ -59,3 +59,14 @@ test("exterior surfaces are θse, and coupling coefficients of three environment
   assert.deepEqual(rows.filter((r) => r[0].startsWith("L ")).map((r) => [r[0], r[1]]),
     [["L a-b", 0.2], ["L a-c", 0.3], ["L b-c", 0.4]]);
 });
+
+test("a temperature-certified result says so and gives no heat flow figures", () => {
+  const rows = keyFigureRows({ id: "c1", heat_flows: { hot: null, cold: null }, L2D: null,
+    condensation: { fRsi: null, verdict: null, not_assessed: "the interior surface meets a known temperature" },
+    mesh: { nodes: 290, converged: true, certified_on: "temperatures", probe_change: 0.0047 } });
+  const quantities = rows.map((r) => r[0]);
+  assert.ok(!quantities.includes("L2D") && !quantities.includes("fRsi") && !quantities.includes("heat flow hot"));
+  assert.deepEqual(rows.find((r) => r[0] === "mesh certified on"), ["mesh certified on", "temperatures", ""]);
+  assert.deepEqual(rows.find((r) => r[0] === "mesh largest probe change"), ["mesh largest probe change", 0.0047, "K"]);
+  assert.ok(rows.some((r) => r[0] === "fRsi not assessed"));
+});

@@ -30,3 +30,9 @@ test("rounding noise counts as zero", () => {
   const { bars } = sensitivityBars([{ material: "a", dpsi_dlnlambda: 3e-17 }, { material: "b", dpsi_dlnlambda: 0.01 }]);
   assert.deepEqual(bars.map((b) => b.value), [0.01, 0]);
 });
+
+test("without a ψ in the result the bars are of L2D, whatever the entries carry", () => {
+  const out = sensitivityBars([{ material: "a", dL2D_dlnlambda: 0.3, dpsi_dlnlambda: 0.1 }], { psi: false });
+  assert.equal(out.quantity, "L2D");
+  assert.equal(out.bars[0].value, 0.3);
+});

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import datetime
 import sys
 import types
 
@@ -45,8 +46,8 @@ def test_png_picture(real_client):
 def test_report_gets_the_result_the_request_and_the_svg(client, monkeypatch):
     calls = {}
 
-    def render_report(result, request, svg):
-        calls.update(result=result, request=request, svg=svg)
+    def render_report(result, request, svg, details):
+        calls.update(result=result, request=request, svg=svg, details=details)
         return "<!doctype html><title>report</title>"
 
     def render_svg(field, result):
@@ -64,6 +65,22 @@ def test_report_gets_the_result_the_request_and_the_svg(client, monkeypatch):
     assert calls["result"]["id"] == body["id"]
     assert calls["request"]["section"]["name"] == fake()["section"]["name"]
     assert calls["request"]["options"]["element"] == "P2"  # normalised, defaults filled
+    assert calls["details"] == {"project": None, "author": None, "checked_by": None,
+                                "date": datetime.date.today().isoformat()}
+    response = client.get(f"/api/v1/evaluations/{body['id']}/report",
+                          params={"project": "Harrowgate Lane library", "author": "A. Teller",
+                                  "checked_by": "B. Reeve", "date": "2026-11-30"})
+    assert response.status_code == 200
+    assert calls["details"] == {"project": "Harrowgate Lane library", "author": "A. Teller",
+                                "checked_by": "B. Reeve", "date": "2026-11-30"}
+
+
+def test_a_report_date_that_is_no_date_is_422_naming_the_parameter(client):
+    body = client.post("/api/v1/evaluations", json=fake()).json()
+    response = client.get(f"/api/v1/evaluations/{body['id']}/report",
+                          params={"date": "30/11/2026"})
+    assert response.status_code == 422
+    assert "date" in response.text
 
 
 def test_missing_renderer_is_501(client, monkeypatch):

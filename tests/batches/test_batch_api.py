@@ -237,3 +237,34 @@ def test_the_item_keys_are_the_evaluation_keys_of_the_owner(client):
     store = client.app.state.evaluations.store
     for item in body["items"]:
         assert store.get(storage_key("", item["evaluation_id"])).status == "done"
+
+
+def test_items_resumed_under_a_lower_node_cap_are_filed_under_their_new_id(client_for):
+    body = {"items": [{"id": "J6", "template": "eaves"}]}
+    with client_for(prestart_workers=False) as client:
+        runner = client.app.state.batches
+        runner.stop()  # nothing runs: the item stays queued, as when a server is killed
+        batch_id = client.post("/api/v1/batches", json=body).json()["id"]
+        made = client.get(f"/api/v1/batches/{batch_id}").json()["items"][0]["evaluation_id"]
+    with client_for(max_nodes=5000) as client:  # restarted with a lower cap: another request
+        item = finished(client, batch_id)["items"][0]
+        assert item["status"] == "done" and item["evaluation_id"] != made
+        evaluation = client.get(f"/api/v1/evaluations/{item['evaluation_id']}").json()
+        assert evaluation["status"] == "done" and evaluation["psi"]["value"] == item["psi"]
+        assert client.get(f"/api/v1/evaluations/{made}").status_code == 404
+
+
+def test_a_server_stopped_mid_batch_finishes_it_after_restart(client_for):
+    from batch_support import wall
+
+    slow = [{"id": str(n), "request": wall(name=f"slow {n}", description="fake: sleep=0.3")}
+            for n in range(6)]
+    with client_for() as client:
+        batch_id = _post(client, {"items": slow})
+        deadline = time.monotonic() + 30
+        while client.get(f"/api/v1/batches/{batch_id}").json()["counts"]["done"] < 1:
+            assert time.monotonic() < deadline
+            time.sleep(0.05)
+    with client_for() as client:  # a graceful stop: items cut off are sent again
+        body = finished(client, batch_id)
+        assert body["status"] == "done" and body["counts"]["done"] == 6

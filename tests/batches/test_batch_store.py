@@ -68,3 +68,10 @@ def test_unfinished_items_survive_reopening_and_running_ones_go_back_in_line(tmp
         assert again.batch_items("k")[1].psi_l == pytest.approx(0.3)
     finally:
         again.close()
+
+
+def test_an_item_can_be_filed_under_a_new_evaluation_id(store):
+    store.create_batch("k", "b1", "owner", None, {}, _items(1))
+    assert store.item_evaluation_id("k", 0) == "e0"
+    store.set_item_evaluation("k", 0, "e0-again")
+    assert store.batch_items("k")[0].evaluation_id == "e0-again"

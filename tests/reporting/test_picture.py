@@ -81,7 +81,7 @@ def test_svg_is_xml_with_colour_bar_label_minimum_marker_and_caution():
     svg = render_svg(square_field(), RESULT)
     texts = svg_texts(svg)
     assert "Temperature θ (°C)" in texts
-    assert "θsi,min 20.00 °C (heat-flow run)" in texts
+    assert "θsi,min 20.00 °C (design run)" in texts
     assert "θsi,min 19.10 °C at Rsi 0.25, fRsi 0.955" in texts
     assert "ψ = 0.061 W/(m·K)" in texts and "L2D = 0.4745" in texts
     assert " ".join(texts.split()) .count("competent person") == 1

@@ -55,3 +55,14 @@ def test_report_of_a_real_evaluation(evaluation):
     assert html.count("<tr>") > 20 and CAUTION in html
     for material in result["materials"]:
         assert material["id"] in html
+
+
+def test_report_of_iso_10211_case_1_is_a_temperature_check():
+    request = parse_request(json.loads((EXAMPLES / "iso10211-case1.json").read_text()))
+    done = evaluate(request)
+    result = {"id": "case1", **done.result}
+    html = render_report(result, request.model_dump(mode="json"), render_svg(done.field, result))
+    assert "NOT converged" not in html and "FAIL" not in html and "0.000" not in html
+    assert "temperatures converged" in html
+    assert "Not assessed: the interior surface of &#x27;hot&#x27; meets" in html
+    assert "not given: the heat flow is unbounded" in html

@@ -176,3 +176,47 @@ def test_failed_verdict_and_unconverged_mesh_are_plain_to_see():
 def test_module_examples_run():
     outcome = doctest.testmod(html_parts)
     assert outcome.attempted > 0 and outcome.failed == 0
+
+
+def test_title_block_shows_project_author_checker_and_date_escaped():
+    details = {"project": "Harrowgate Lane library " + EVIL, "author": "A. Teller",
+               "checked_by": None, "date": "2026-11-30"}
+    html = render_report(full_result(), request(), SVG, details=details)
+    parse(html)
+    block = html[html.index('class="title-block"'):]
+    block = block[:block.index("</dl>")]
+    for text in ("Project", "Harrowgate Lane library &lt;script&gt;", "Prepared by", "A. Teller",
+                 "Checked by", "Date", "2026-11-30"):
+        assert text in block, text
+    assert 'class="blank"' in block  # checked by: a line to sign by hand
+    assert "<script" not in html.lower()
+
+
+def test_humidity_is_a_percentage_in_every_table():
+    req = request()
+    req["condensation"] = {"interior_surface_resistance": 0.25,
+                           "indoor": {"temperature": 20, "relative_humidity": 0.5}}
+    result = full_result()
+    result["condensation"]["indoor_relative_humidity"] = 0.5
+    html = render_report(result, req, SVG)
+    assert html.count("50 %") == 2
+    assert "0.50" not in html
+
+
+def test_words_wrap_at_spaces_only():
+    from coldseam.reporting.report_style import CSS
+
+    assert "anywhere" not in CSS and "hyphens: auto" not in CSS
+    assert "hyphens: manual" in CSS
+
+
+def test_sensitivities_name_what_was_computed():
+    with_psi = render_report(full_result(), request(), SVG)
+    assert "Sensitivity of ψ to the conductivities λ" in with_psi
+    result = full_result()
+    result["sensitivities"] = [{"material": "eps", "dL2D_dlnlambda": 0.21,
+                                "dpsi_dlnlambda": None}]
+    result["psi"] = None
+    html = render_report(result, request(), SVG)
+    assert "Sensitivity of L2D to the conductivities λ" in html
+    assert "∂ψ" not in html and "ψ change" not in html

@@ -12,6 +12,7 @@ CROSS_CHECKED = {
     "balcony": {"break_thickness"},
     "window_reveal": {"frame_offset", "reveal_insulation_thickness"},
     "ground_floor": {"foundation_depth", "perimeter_insulation_depth"},
+    "window_installation": {"frame_offset"},
 }
 
 

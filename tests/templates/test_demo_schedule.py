@@ -41,3 +41,13 @@ def test_the_readme_shows_what_the_batch_command_prints(readme, monkeypatch):
     assert printed in readme.read_text(), (
         f"{readme.name} must show what `coldseam batch examples/harrowgate/schedule.csv "
         f"--out results.csv` prints today:\n{printed}")
+
+
+def test_glazing_edge_section_is_the_template_build():
+    """The demo's glazing edge (not a schedule row: ψ_g belongs in U_w) is today's build."""
+    import json
+
+    stored = json.loads((DEMO / "sections" / "w1-glazing-edge.json").read_text())
+    request = build("glazing_edge", {"spacer": "warm_edge"})
+    parse_request(request)
+    assert stored == json.loads(json.dumps(request))

@@ -11,9 +11,10 @@ from coldseam.templates import build, get_template, list_templates
 TEMPLATE_IDS = [t.id for t in list_templates()]
 
 
-def test_seven_templates_with_unique_ids():
+def test_nine_templates_with_unique_ids():
     assert TEMPLATE_IDS == ["wall_corner", "floor_slab", "balcony", "window_reveal", "eaves",
-                            "ground_floor", "framed_wall"]
+                            "ground_floor", "framed_wall", "window_installation",
+                            "glazing_edge"]
 
 
 @pytest.mark.parametrize("template_id", TEMPLATE_IDS)
@@ -110,6 +111,9 @@ def test_material_conductivity_out_of_range():
                       "foundation_depth": 500}, "foundation_depth", "foundation"),
     ("ground_floor", {"perimeter_insulation_depth": 1200, "foundation_depth": 800},
      "perimeter_insulation_depth", "foundation"),
+    ("window_installation", {"frame_offset": 0.3}, "frame_offset", "joint of the wall"),
+    ("window_installation", {"frame_offset": 90.5, "frame_depth": 70,
+                             "insulation_thickness": 160}, "frame_offset", "joint of the wall"),
 ])
 def test_cross_parameter_checks(template_id, params, field, words):
     with pytest.raises(InvalidSection) as info:
@@ -138,3 +142,11 @@ def test_cut_off_planes_at_three_wall_thicknesses_for_thick_walls():
     data = build("floor_slab", {"wall_thickness": 400, "insulation_thickness": 400})
     ys = [y for region in data["section"]["regions"] for _, y in region["polygon"]]
     assert min(ys) == pytest.approx(-2400) and max(ys) == pytest.approx(200 + 2400)
+
+
+def test_count_choice_takes_a_whole_number():
+    """A count option ("5" chambers) may come as the number 5 (a CSV cell, a JSON number)."""
+    assert build("glazing_edge", {"chambers": 5}) == build("glazing_edge", {"chambers": "5"})
+    with pytest.raises(InvalidSection) as info:
+        build("glazing_edge", {"chambers": 6})
+    assert info.value.field == "/parameters/chambers"

@@ -188,3 +188,10 @@ def test_humidity_class_and_fixed_criterion_verdicts():
     classed = run({**section, "condensation": {"indoor": {"humidity_class": 4}}})
     assert classed["condensation"]["fRsi_critical"] > passing["condensation"]["fRsi_critical"]
     assert "caution" in passing and "competent person" in passing["caution"]
+
+
+def test_without_a_psi_request_only_l2d_sensitivities_are_given():
+    result = run({"section": layered_wall([("eps", 0.035, 100.0), ("concrete", 2.3, 200.0)])})
+    assert result["psi"] is None
+    for entry in result["sensitivities"]:
+        assert entry["dpsi_dlnlambda"] is None and entry["dL2D_dlnlambda"] > 0

@@ -119,9 +119,34 @@ def test_corner_against_the_textbook_shape_factor():
     assert result["L2D"] == pytest.approx(inner_legs / t + 0.54, rel=0.05)
 
 
-def test_energy_balance(case_1):
-    flows = case_1["heat_flows"]
+def test_energy_balance():
+    flows = run(bridged_wall())["heat_flows"]
     assert abs(sum(flows.values())) < 1e-8 * max(abs(v) for v in flows.values())
+
+
+def test_iso_10211_case_1_is_a_certified_temperature_check(case_1):
+    # Known temperatures of both environments meet at the corner (0, 1) m: the heat flow is
+    # unbounded there, so none is given; the certificate is on the probe temperatures.
+    mesh = case_1["mesh"]
+    assert mesh["certified_on"] == "temperatures"
+    assert mesh["heat_flow_singular"]["at"] == [[0.0, 1.0]]
+    assert mesh["converged"] and mesh["target_met"]
+    assert mesh["probe_change"] < 0.01
+    assert case_1["L2D"] is None and set(case_1["heat_flows"].values()) == {None}
+    assert all(level["heat_flow"] is None for level in mesh["levels"])
+    condensation = case_1["condensation"]
+    assert condensation["fRsi"] is None and condensation["verdict"] is None
+    assert "known surface temperature" in condensation["not_assessed"]
+    assert "sensitivities" not in case_1
+    assert case_1["warnings"][0].startswith("heat flow singular")
+    # its right edge is the standard's symmetry plane (declared so): no cut-off warning
+    assert not any("cut-off" in w for w in case_1["warnings"])
+
+
+def test_a_section_with_surface_resistances_is_not_singular():
+    result = run(bridged_wall())
+    assert "certified_on" not in result["mesh"]
+    assert result["condensation"]["fRsi"] is not None
 
 
 def mirrored(section, width):

@@ -30,7 +30,8 @@ function condensationRows(rows, c) {
   push(rows, "fRsi", c.fRsi, "");
   push(rows, "fRsi critical", c.fRsi_critical, "");
   push(rows, "verdict", c.verdict, "");
-  push(rows, "theta_si,min (condensation run)", c.min_temperature, "°C");
+  push(rows, "fRsi not assessed", c.not_assessed, "");
+  push(rows, "theta_si,min (fRsi run)", c.min_temperature, "°C");
 }
 
 function meshRows(rows, mesh) {
@@ -39,6 +40,8 @@ function meshRows(rows, mesh) {
   push(rows, "mesh elements", mesh.elements, "");
   push(rows, "mesh relative change of heat flow", mesh.relative_change, "");
   push(rows, "mesh converged", mesh.converged, "");
+  push(rows, "mesh certified on", mesh.certified_on, "");
+  push(rows, "mesh largest probe change", mesh.probe_change, "K");
 }
 
 function couplingRows(rows, coupling) {

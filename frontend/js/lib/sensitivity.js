@@ -5,9 +5,10 @@
 /** Sensitivities smaller than this (W/(m·K)) are rounding noise of the solve: shown as zero. */
 export const NOISE = 1e-9;
 
-export function sensitivityBars(sensitivities) {
+export function sensitivityBars(sensitivities, { psi = true } = {}) {
   if (!Array.isArray(sensitivities) || !sensitivities.length) return { quantity: null, bars: [] };
-  const hasPsi = sensitivities.some((s) => Number.isFinite(s.dpsi_dlnlambda));
+  // ψ only when the result has one: without flanking elements there is no ψ to move
+  const hasPsi = psi && sensitivities.some((s) => Number.isFinite(s.dpsi_dlnlambda));
   const key = hasPsi ? "dpsi_dlnlambda" : "dL2D_dlnlambda";
   const bars = sensitivities
     .filter((s) => Number.isFinite(s[key]))

@@ -21,8 +21,37 @@ export function downloadsCard(result) {
     h("li", {}, blobLink("Key figures (CSV)", `${stem}.csv`, "text/csv",
       toCsv(keyFigureRows(result)), "download-csv")),
     h("li", {}, link("Picture (SVG)", "picture.svg", "download-svg", { download: `${stem}.svg` })),
-    h("li", {}, link("Picture (PNG)", "picture.png", "download-png", { download: `${stem}.png` })),
-    h("li", {}, link("Printable report", "report", "download-report", { target: "_blank", rel: "noopener" }))));
+    h("li", {}, link("Picture (PNG)", "picture.png", "download-png", { download: `${stem}.png` }))),
+  reportForm(result));
+}
+
+/** The report's title block: project, prepared by, checked by, date (today unless changed). */
+function reportForm(result) {
+  const field = (name, label, props = {}) => {
+    const input = h("input", { id: `report-${name}`, name, autocomplete: "off", maxlength: 200, testid: `report-${name}`, ...props });
+    return [input, h("div", { class: "field" }, h("label", { for: `report-${name}` }, label), input)];
+  };
+  const [project, projectField] = field("project", "Project");
+  const [author, authorField] = field("author", "Prepared by");
+  const [checked, checkedField] = field("checked_by", "Checked by");
+  const today = new Date().toISOString().slice(0, 10);
+  const [date, dateField] = field("date", "Date", { type: "date", value: today });
+  const anchor = keyed(h("a", { class: "download", href: reportUrl(), testid: "download-report", target: "_blank", rel: "noopener" },
+    "Printable report"));
+  function reportUrl() {
+    const query = new URLSearchParams();
+    for (const [key, input] of [["project", project], ["author", author], ["checked_by", checked], ["date", date]]) {
+      const value = input?.value?.trim();
+      if (value && !(key === "date" && value === today)) query.set(key, value); // the service dates it today
+    }
+    const text = query.toString();
+    return evaluationUrl(result.id, text ? `report?${text}` : "report");
+  }
+  for (const input of [project, author, checked, date]) {
+    input.addEventListener("input", () => { anchor.href = reportUrl(); delete anchor.dataset.fetched; });
+  }
+  return h("fieldset", { class: "report-form" }, h("legend", {}, "Report title block"),
+    h("div", { class: "report-fields" }, projectField, authorField, checkedField, dateField), anchor);
 }
 
 /** With an API key, links cannot carry it: fetch with the key and follow a blob URL instead. */

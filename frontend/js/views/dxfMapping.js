@@ -31,7 +31,7 @@ function initialChoice(layer, index, library) {
 function materialDetails(choice, library, row) {
   const source = h("select", { "aria-label": `${row.name}: material source`, testid: "layer-library" },
     h("option", { value: "" }, "Own λ"),
-    library.map((m) => h("option", { value: m.id }, `${m.name || m.id} (λ ${lambdaText(m.conductivity)})`)));
+    library.map((m) => h("option", { value: m.id }, `${m.name || m.id} (λ ${lambdaText(m.conductivity)} W/(m·K))`)));
   source.value = choice.library;
   const lam = input({ type: "number", step: "any", min: "0", value: choice.conductivity,
     testid: "layer-lambda", "aria-label": `${row.name}: λ in W/(m·K)` }, (v) => { choice.conductivity = v; });

@@ -1,12 +1,15 @@
 // The temperature field of an evaluation: the nodal field rasterised through Coldseam's
 // thermal colour map, isotherms, piece outlines, exposed and adiabatic edges, the lowest
-// interior surface temperatures marked, a colour bar in °C and a readout under the cursor.
+// interior surface temperatures marked, air cavities hatched, a colour bar in °C and a readout
+// under the cursor (a cavity's λeq when over one).
 
 import { h, replace, s } from "../dom.js";
 import { buildLocator, locate } from "../lib/barycentric.js";
+import { HATCH_ID, hatchSpec, materialText } from "../lib/cavities.js";
 import { isolines, niceLevels } from "../lib/contour.js";
 import { thermalLut } from "../lib/colormap.js";
 import { fixed } from "../lib/format.js";
+import { degrees, firstFree, textBox } from "../lib/labels.js";
 import { rasterise } from "../lib/raster.js";
 import { boundsOf, linePath, ringPath, toScreen, toWorld } from "../lib/viewport.js";
 import { ADIABATIC, environmentColours } from "../palette.js";
@@ -69,8 +72,16 @@ function draw(canvas, overlay, surface, model, view) {
     points, triangles, values: temperature, lo: model.lo, hi: model.hi, lut: thermalLut() });
   ctx.putImageData(image, 0, 0);
   overlay.setAttribute("viewBox", `0 0 ${width} ${height}`);
-  replace(overlay, pieces(model.field, view), isothermPaths(model, view), edges(model, view),
+<<<<<<< HEAD
+  const area = { x0: 0, y0: 0, x1: width, y1: height };
+  const taken = [];
+  const markers = minMarkers(model.field, view, taken, area); // marks first: isotherm labels keep clear
+  replace(overlay, pieces(model.field, view), isothermPaths(model, view, taken, area), edges(model, view),
+    markers, scaleBar(view, "m", height));
+=======
+  replace(overlay, pieces(model.field, view), cavities(model.field, view), isothermPaths(model, view), edges(model, view),
     minMarkers(model.field, view), scaleBar(view, "m", height));
+>>>>>>> cavities
 }
 
 function pieces(field, view) {
@@ -78,27 +89,52 @@ function pieces(field, view) {
     d: [p.polygon, ...(p.holes || [])].map((ring) => ringPath(view, ring)).join(""), class: "piece" })));
 }
 
+<<<<<<< HEAD
+function isothermPaths(model, view, taken, area) {
+  return s("g", { class: "isotherms" }, model.lines.map(({ level, lines }) => s("g", {},
+=======
+/** Air cavities in Coldseam's hatch; each path names its cavity for tests and tools. */
+function cavities(field, view) {
+  const drawn = (field.cavities || []).filter((c) => (c.rings || []).length);
+  if (!drawn.length) return null;
+  const build = ([tag, attrs, children]) => s(tag, attrs, ...(children || []).map(build));
+  return s("g", { class: "cavities", testid: "field-cavities" }, s("defs", {}, build(hatchSpec())),
+    drawn.map((c) => s("path", { d: c.rings.map((ring) => ringPath(view, ring)).join(""), class: "cavity",
+      fill: `url(#${HATCH_ID})`, "fill-rule": "evenodd", "data-region": c.region })));
+}
+
 function isothermPaths(model, view) {
   const step = model.levels.length > 6 ? 2 : 1;
   const placed = [];
   return s("g", { class: "isotherms" }, model.lines.map(({ level, lines }, k) => s("g", {},
+>>>>>>> cavities
     lines.map((line) => s("path", { d: linePath(view, line), class: "isotherm" })),
-    k % step === 0 ? isothermLabel(level, lines, view, placed) : null)));
+    isothermLabel(level, lines, view, taken, area))));
 }
 
 const LABEL_SPOTS = [0.5, 0.3, 0.7, 0.15, 0.85, 0.4, 0.6];
+const ISO_FONT = 11;
 
-/** A label on the longest piece of an isotherm, where it keeps clear of labels placed so far. */
-function isothermLabel(level, lines, view, placed) {
+/** A label "12.5 °C" on the longest piece of an isotherm, where it covers no label placed so far. */
+function isothermLabel(level, lines, view, taken, area) {
   const longest = lines.reduce((a, b) => (b.length > (a?.length || 0) ? b : a), null);
   if (!longest || longest.length < 4) return null;
-  for (const f of LABEL_SPOTS) {
-    const [x, y] = toScreen(view, ...longest[Math.floor(f * (longest.length - 1))]);
-    if (placed.some(([px, py]) => Math.hypot(px - x, py - y) < 34)) continue;
-    placed.push([x, y]);
-    return s("text", { x, y: y - 3, class: "isotherm-label", "text-anchor": "middle" }, `${fixed(level, 1)}°`);
+  const text = degrees(level);
+  const screen = longest.map((p) => toScreen(view, ...p));
+  const along = [0];
+  for (let i = 1; i < screen.length; i++) {
+    along.push(along[i - 1] + Math.hypot(screen[i][0] - screen[i - 1][0], screen[i][1] - screen[i - 1][1]));
   }
-  return null;
+  const total = along[along.length - 1];
+  if (total < 3 * textBox(0, 0, text, ISO_FONT).x1) return null; // too short to carry its label
+  // spots by length along the line, not by point count: points crowd where the mesh is fine
+  const candidates = LABEL_SPOTS.map((f) => {
+    const k = Math.max(0, along.findIndex((d) => d >= f * total));
+    const [x, y] = screen[k];
+    return { x, y: y - 3, box: textBox(x, y - 3, text, ISO_FONT, "middle") };
+  });
+  const chosen = firstFree(candidates, taken, area);
+  return chosen ? s("text", { x: chosen.x, y: chosen.y, class: "isotherm-label", "text-anchor": "middle" }, text) : null;
 }
 
 function edges(model, view) {
@@ -112,10 +148,19 @@ function edges(model, view) {
 /** The lowest interior surface temperatures: design run and condensation run. */
 function interiorMinima(field) {
   const interior = new Set((field.boundaries || []).filter((b) => b.side === "interior").map((b) => b.environment));
-  const out = Object.entries(field.min_surface || {}).filter(([env]) => interior.has(env) || !interior.size)
+  const known = knownTemperatureSurfaces(field);
+  const out = Object.entries(field.min_surface || {})
+    .filter(([env]) => (interior.has(env) || !interior.size) && !known.has(env))
     .map(([env, m]) => ({ kind: "design", env, ...m }));
   if (field.condensation_min) out.push({ kind: "condensation", env: "", ...field.condensation_min });
   return out;
+}
+
+/** Environments whose surfaces all have Rs = 0: their temperature is given, a minimum there marks nothing. */
+function knownTemperatureSurfaces(field) {
+  const rs = new Map();
+  for (const b of field.boundaries || []) rs.set(b.environment, [...(rs.get(b.environment) || []), b.surface_resistance]);
+  return new Set([...rs].filter(([, list]) => list.every((r) => r === 0)).map(([env]) => env));
 }
 
 /** A box around the lowest interior surface temperature: a fifth of the section, 0.4 m at least. */
@@ -128,15 +173,26 @@ function minimumBox(model) {
   return { x0: x - half, y0: y - half, x1: x + half, y1: y + half };
 }
 
-function minMarkers(field, view) {
-  return s("g", { class: "min-markers" }, interiorMinima(field).map((m) => {
-    const [x, y] = toScreen(view, ...m.at);
+const MIN_FONT = 12;
+const MIN_OFFSETS = [[10, -14], [10, 22], [-10, -14], [-10, 22], [10, 40], [-10, 40], [10, -32], [-10, -32]];
+
+/** Markers of the lowest interior surface temperatures, each label where it covers no other. */
+function minMarkers(field, view, taken, area) {
+  const minima = interiorMinima(field).map((m) => ({ ...m, xy: toScreen(view, ...m.at) }));
+  for (const { xy: [x, y] } of minima) taken.push({ x0: x - 7, y0: y - 7, x1: x + 7, y1: y + 7 });
+  return s("g", { class: "min-markers" }, minima.map((m) => {
+    const [x, y] = m.xy;
     const design = m.kind === "design";
-    const dy = design ? -14 : 22;
+    const text = design ? `θsi,min ${fixed(m.temperature, 2)} °C` : `fRsi run ${fixed(m.temperature, 2)} °C`;
+    const order = design ? MIN_OFFSETS : [MIN_OFFSETS[1], MIN_OFFSETS[0], ...MIN_OFFSETS.slice(2)];
+    const chosen = firstFree(order.map(([dx, dy]) => {
+      const anchor = dx < 0 ? "end" : "start";
+      return { x: x + dx, y: y + dy, anchor, box: textBox(x + dx, y + dy, text, MIN_FONT, anchor) };
+    }), taken, area, true);
     return s("g", { class: `min-marker ${m.kind}` },
       design ? s("circle", { cx: x, cy: y, r: 6 }) : s("rect", { x: x - 5, y: y - 5, width: 10, height: 10 }),
-      s("text", { x: x + 10, y: y + dy, class: "min-label", testid: design ? "min-surface-label" : "condensation-min-label" },
-        design ? `θsi,min ${fixed(m.temperature, 2)} °C` : `fRsi run ${fixed(m.temperature, 2)} °C`));
+      s("text", { x: chosen.x, y: chosen.y, "text-anchor": chosen.anchor, class: "min-label",
+        testid: design ? "min-surface-label" : "condensation-min-label" }, text));
   }));
 }
 
@@ -144,7 +200,7 @@ function minLegend(model) {
   const items = interiorMinima(model.field).map((m) => h("li", {},
     h("span", { class: `marker-key ${m.kind}`, "aria-hidden": "true" }),
     m.kind === "design" ? `Lowest surface temperature${m.env ? ` (${m.env})` : ""}, design run: ${fixed(m.temperature, 2)} °C`
-      : `Lowest interior surface temperature with the condensation Rsi: ${fixed(m.temperature, 2)} °C`));
+      : `Lowest interior surface temperature, fRsi run (Rsi for fRsi): ${fixed(m.temperature, 2)} °C`));
   return h("figcaption", { class: "legend" }, h("ul", { class: "legend-list" }, items,
     h("li", {}, h("span", { class: "swatch swatch-iso", "aria-hidden": "true" }),
       `isotherms every ${model.levels.length > 1 ? fixed(model.levels[1] - model.levels[0], 1) : "—"} K`)));
@@ -162,6 +218,6 @@ function hover(event, surface, readout, model, view) {
   const flux = model.field.heat_flux?.[hit.triangle];
   replace(readout, h("strong", {}, `θ ${fixed(theta, 2)} °C`),
     ` at (${fixed(x * 1000, 0)}, ${fixed(y * 1000, 0)}) mm`,
-    mat ? ` · ${mat.id}, λ ${mat.conductivity[0] === mat.conductivity[1] ? mat.conductivity[0] : mat.conductivity.join(" / ")} W/(m·K)` : "",
+    mat ? ` · ${materialText(mat)}` : "",
     Number.isFinite(flux) ? ` · |q| ${fixed(flux, 1)} W/m²` : "");
 }

@@ -66,7 +66,7 @@ export function numberField(p, onChange) {
 }
 
 function materialOption(m) {
-  const label = `${m.name || m.title || m.id} · λ ${lambdaText(m.conductivity ?? m.lambda)}`;
+  const label = `${m.name || m.title || m.id} · λ ${lambdaText(m.conductivity ?? m.lambda)} W/(m·K)`;
   return h("option", { value: m.id }, label);
 }
 

@@ -3,6 +3,7 @@
 
 import { h, replace, s } from "../dom.js";
 import { classifyOutline, inRing, inUnion } from "../lib/outline.js";
+import { firstFree, textBox } from "../lib/labels.js";
 import { boundsOf, linePath, ringPath, toScreen, toWorld } from "../lib/viewport.js";
 import { ADIABATIC, environmentColours, lambdaText, materialColours } from "../palette.js";
 import { attachPanZoom } from "./panzoom.js";
@@ -41,7 +42,7 @@ function prepare(section, library) {
     section,
     regions,
     materials,
-    colours: materialColours(regions.map((r) => r.material)),
+    colours: materialColours([...regions.map((r) => materials.get(r.material) || { id: r.material })]),
     envColours: environmentColours(section.environments || []),
     outline: classifyOutline(section),
     box: boundsOf(regions.map((r) => r.polygon)),
@@ -61,12 +62,13 @@ function draw(svg, model, view, surface) {
     s("path", { d: linePath(view, e.segment), class: "edge-exposed",
       stroke: model.envColours.get(e.environment) }));
   replace(svg, s("g", {}, regionPaths), s("g", {}, adiabatic), s("g", {}, exposed),
-    resistanceLabels(model, view), probes(model.section.probes || [], view),
+    resistanceLabels(model, view, surface.clientWidth, surface.clientHeight), probes(model.section.probes || [], view),
     scaleBar(view, model.section.unit, surface.clientHeight || 400));
 }
 
-/** One "Rs" label per boundary, outside the section beside its longest exposed piece. */
-function resistanceLabels(model, view) {
+/** One "Rs" label per boundary, outside the section beside its longest exposed piece, kept
+ * inside the drawing and clear of the other labels. */
+function resistanceLabels(model, view, width, height) {
   const longest = new Map();
   for (const e of model.outline.exposed) {
     const len = Math.hypot(e.segment[1][0] - e.segment[0][0], e.segment[1][1] - e.segment[0][1]);
@@ -74,14 +76,27 @@ function resistanceLabels(model, view) {
       longest.set(e.boundary, { len, seg: e.segment });
     }
   }
+  const taken = [];
   const labels = [];
   for (const [bd, { seg }] of longest) {
+    const text = `${bd.environment} · ${rsText(bd.surface_resistance)}`;
     const [sx, sy] = outsidePoint(model, view, seg);
-    labels.push(s("text", { x: sx, y: sy, class: "rs-label", "text-anchor": "middle",
-      fill: model.envColours.get(bd.environment) }, `${bd.environment} · Rs ${bd.surface_resistance}`));
+    const half = textBox(0, 0, text, RS_FONT).x1 / 2;
+    const x = width ? Math.min(Math.max(sx, half + 2), width - half - 2) : sx;
+    const candidates = [0, 16, -16, 32, -32].map((dy) => ({ x, y: sy + dy, box: textBox(x, sy + dy, text, RS_FONT, "middle") }));
+    const chosen = firstFree(candidates, taken, width ? { x0: 0, y0: 0, x1: width, y1: height } : null, true);
+    labels.push(s("text", { x: chosen.x, y: chosen.y, class: "rs-label", "text-anchor": "middle",
+      fill: model.envColours.get(bd.environment) }, text));
   }
   return s("g", {}, labels);
 }
+
+/** A surface resistance with its unit; Rs 0 is a known surface temperature. */
+export function rsText(rs) {
+  return rs === 0 ? "known temperature (Rs 0)" : `Rs ${rs} m²·K/W`;
+}
+
+const RS_FONT = 12;
 
 function outsidePoint(model, view, [a, b]) {
   const [ax, ay] = toScreen(view, ...a);
@@ -116,8 +131,8 @@ function hover(event, surface, tip, model, view) {
     inRing(x, y, r.polygon) && !(r.holes || []).some((hole) => inRing(x, y, hole)));
   if (!region) { tip.hidden = true; return; }
   const mat = model.materials.get(region.material) || {};
-  const lam = mat.conductivity !== undefined ? `λ ${lambdaText(mat.conductivity)} W/(m·K)`
-    : `library ${mat.library ?? ""}`;
+  const lam = mat.cavity ? "air cavity: λeq computed per cavity"
+    : mat.conductivity !== undefined ? `λ ${lambdaText(mat.conductivity)} W/(m·K)` : `library ${mat.library ?? ""}`;
   replace(tip, h("strong", {}, region.material), mat.libraryName ? h("span", {}, mat.libraryName) : null,
     h("span", {}, lam));
   tip.hidden = false;
@@ -128,7 +143,11 @@ function hover(event, surface, tip, model, view) {
 function legend(model) {
   const mats = [...model.colours].map(([id, colour]) => {
     const m = model.materials.get(id) || {};
-    const lam = m.conductivity !== undefined ? `λ ${lambdaText(m.conductivity)}` : `library ${m.library}`;
+<<<<<<< HEAD
+    const lam = m.conductivity !== undefined ? `λ ${lambdaText(m.conductivity)} W/(m·K)` : `library ${m.library}`;
+=======
+    const lam = m.cavity ? "air cavity" : m.conductivity !== undefined ? `λ ${lambdaText(m.conductivity)}` : `library ${m.library}`;
+>>>>>>> cavities
     return h("li", { title: m.libraryName || m.description || "" }, swatch(colour, "fill"), h("span", {}, id),
       h("span", { class: "muted" }, lam));
   });
@@ -136,7 +155,7 @@ function legend(model) {
     swatch(model.envColours.get(env.id), "line"), h("span", {}, env.id),
     h("span", { class: "muted" }, `${env.side}, ${env.temperature} °C`)));
   return h("figcaption", { class: "legend" },
-    h("ul", { class: "legend-list", "aria-label": "Materials (λ in W/(m·K))" }, mats),
+    h("ul", { class: "legend-list", "aria-label": "Materials" }, mats),
     h("ul", { class: "legend-list", "aria-label": "Environments" }, envs,
       h("li", {}, swatch(ADIABATIC, "dash"), h("span", {}, "adiabatic"),
         h("span", { class: "muted" }, "cut-off or symmetry"))));

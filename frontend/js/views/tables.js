@@ -18,3 +18,8 @@ export function pairs(rows, props = {}) {
       h("td", { class: "num", testid }, value),
       h("td", { class: "unit" }, unit || "")))));
 }
+
+/** A wide table scrolls sideways inside its own box, never the page. */
+export function scroller(node) {
+  return h("div", { class: "table-scroll", tabindex: 0, role: "region", "aria-label": "Table (scrolls sideways)" }, node);
+}

@@ -144,6 +144,8 @@ class BatchRunner:
             submitted = self.evaluations.submit(owner, parsed, text, f"batch-{key[:8]}")
         except QueueFull:
             return True
+        if submitted.id != self.store.item_evaluation_id(key, position):
+            self.store.set_item_evaluation(key, position, submitted.id)
         if submitted.done is None:
             self._finish(key, position, submitted.key, None)
         else:

@@ -201,6 +201,18 @@ class BatchTables:
         self._write("UPDATE batch_items SET status='running', updated_at=? WHERE batch_key=? "
                     "AND position=? AND status='queued'", (time.time(), key, position))
 
+    def item_evaluation_id(self, key: str, position: int) -> str | None:
+        with self._lock:
+            row = self._conn.execute("SELECT evaluation_id FROM batch_items WHERE "
+                                     "batch_key=? AND position=?", (key, position)).fetchone()
+        return row[0] if row else None
+
+    def set_item_evaluation(self, key: str, position: int, evaluation_id: str) -> None:
+        """Record the evaluation an item now runs as (its id changes when a server limit
+        that shapes the request, such as the mesh-node cap, changed since the batch was made)."""
+        self._write("UPDATE batch_items SET evaluation_id=?, updated_at=? WHERE batch_key=? "
+                    "AND position=?", (evaluation_id, time.time(), key, position))
+
     def requeue_item(self, key: str, position: int) -> None:
         """Put an item handed to the pool back in line (the pool refused it)."""
         self._write("UPDATE batch_items SET status='queued', updated_at=? WHERE batch_key=? "

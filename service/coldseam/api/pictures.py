@@ -2,11 +2,12 @@
 
 from __future__ import annotations
 
+import datetime
 import importlib
 import json
-from typing import Any
+from typing import Annotated, Any
 
-from fastapi import APIRouter, HTTPException
+from fastapi import APIRouter, HTTPException, Query
 from fastapi.concurrency import run_in_threadpool
 from fastapi.responses import HTMLResponse, Response
 
@@ -63,14 +64,25 @@ async def picture_png(evaluation_id: str, evaluations: EvaluationsDep,
     return Response(png, media_type="image/png")
 
 
+HeaderText = Annotated[str | None, Query(max_length=200)]
+
+
 @router.get("/{evaluation_id}/report", response_class=HTMLResponse, responses=NOT_FOUND)
-async def report(evaluation_id: str, evaluations: EvaluationsDep,
-                 owner: OwnerDep) -> HTMLResponse:
-    """A printable HTML report of the evaluation (inputs, results, picture, caution)."""
+async def report(evaluation_id: str, evaluations: EvaluationsDep, owner: OwnerDep,
+                 project: HeaderText = None, author: HeaderText = None,
+                 checked_by: HeaderText = None,
+                 date: Annotated[datetime.date | None, Query()] = None) -> HTMLResponse:
+    """A printable HTML report of the evaluation (inputs, results, picture, caution).
+
+    ``project``, ``author`` (prepared by) and ``checked_by`` fill the report's title block
+    (left blank to sign by hand when not given); ``date`` (YYYY-MM-DD) defaults to today."""
     field, result, request = await run_in_threadpool(_field_and_result, evaluations,
                                                      owner, evaluation_id)
     render_svg = reporting("picture", "render_svg")
     render_report = reporting("report", "render_report")
     svg = await run_in_threadpool(render_svg, field, result)
-    html = await run_in_threadpool(render_report, result, request, svg)
+    details = {"project": project, "author": author, "checked_by": checked_by,
+               "date": (date or datetime.date.today()).isoformat()}
+    html = await run_in_threadpool(lambda: render_report(result, request, svg,
+                                                         details=details))
     return HTMLResponse(html)

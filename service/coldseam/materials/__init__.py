@@ -96,6 +96,8 @@ def resolve_materials(section: Section) -> dict[str, ResolvedMaterial]:
     """
     resolved: dict[str, ResolvedMaterial] = {}
     for i, material in enumerate(section.materials):
+        if material.cavity is not None:
+            continue  # an air cavity: λeq is computed per cavity (coldseam.thermal.cavities)
         if material.conductivity is not None:
             lam = material.conductivity
             lam_x, lam_y = lam if isinstance(lam, tuple) else (lam, lam)

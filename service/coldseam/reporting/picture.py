@@ -1,9 +1,10 @@
 """The temperature field of an evaluation as a picture (SVG or PNG).
 
-Filled temperature bands in a perceptually uniform colour map (cividis: dark blue for cold,
-yellow for warm, readable in grey and by colour-blind readers), labelled isotherms every 1, 2,
-5 or 10 K, material outlines, exposed surfaces marked by environment, the minimum interior
-surface temperature marked and labelled, a colour bar in °C and the caution.
+Filled temperature bands in Coldseam's thermal colour map (the page's, see
+``coldseam.reporting.colours``: lightness rising from deep blue-violet for cold to pale straw
+for warm, readable in grey), isotherms every 1, 2, 5 or 10 K labelled where they find room
+(``picture_labels``), material outlines, exposed surfaces marked by environment, the minimum
+interior surface temperatures marked and labelled, a colour bar in °C and the caution.
 
 Figures are built on ``matplotlib.figure.Figure`` with their own canvas: no pyplot, no global
 figure state, safe to call from several threads.
@@ -25,6 +26,12 @@ from matplotlib.figure import Figure
 from matplotlib.tri import Triangulation
 
 from coldseam import CAUTION
+<<<<<<< HEAD
+from coldseam.reporting.colours import thermal_colour_map
+from coldseam.reporting.picture_labels import label_isotherms, occupied_for
+=======
+from coldseam.reporting.picture_cavities import draw_cavities
+>>>>>>> cavities
 from coldseam.reporting.picture_marks import (
     draw_boundaries,
     draw_minima,
@@ -34,7 +41,6 @@ from coldseam.reporting.picture_marks import (
 
 logger = logging.getLogger(__name__)
 
-COLOUR_MAP = "cividis"
 #: Isotherm steps in K; the smallest giving at most MAX_ISOTHERMS lines is used.
 ISOTHERM_STEPS = (1.0, 2.0, 5.0, 10.0, 20.0, 50.0)
 MAX_ISOTHERMS = 14
@@ -78,17 +84,22 @@ def draw(field: dict[str, Any], result: dict[str, Any]) -> Figure:
         raise ValueError("the evaluation has no temperature field to draw")
     low, high = points.min(axis=0), points.max(axis=0)
     scale, unit = (1000.0, "mm") if (high - low).max() <= MM_AXES_UP_TO else (1.0, "m")
-    layout = Layout.for_extent((high - low) * scale)
+    title = _wrapped_title(result, (high - low) * scale)
+    layout = Layout.for_extent((high - low) * scale, title.count("\n") + 1)
     figure = Figure(figsize=layout.size)
     FigureCanvasAgg(figure)  # its own canvas: nothing registered with pyplot
     ax = figure.add_axes(layout.axes)
     tri = Triangulation(points[:, 0] * scale, points[:, 1] * scale, triangles)
-    _draw_temperature(figure.add_axes(layout.colour_bar), ax, tri, theta)
+    isotherms = _draw_temperature(figure.add_axes(layout.colour_bar), ax, tri, theta)
     draw_outlines(ax, field, scale)
-    handles = draw_boundaries(ax, field, scale)
+    handles = draw_boundaries(ax, field, scale) + draw_cavities(ax, field, scale)
     _frame(ax, unit, low * scale, high * scale)
-    handles += draw_minima(ax, field, result, scale)
-    _texts(figure, layout, result, handles)
+    renderer = figure.canvas.get_renderer()
+    occupied = occupied_for(ax, renderer)
+    handles += draw_minima(ax, field, result, scale, occupied, renderer)
+    if isotherms is not None:
+        label_isotherms(ax, isotherms, occupied, renderer)
+    _texts(figure, layout, title, handles)
     logger.debug("drew %d triangles", len(triangles))
     return figure
 
@@ -103,8 +114,9 @@ class Layout:
     colour_bar: tuple[float, float, float, float]
 
     @classmethod
-    def for_extent(cls, extent: np.ndarray) -> Layout:
-        left, right, top, bottom = 0.85, 1.25, 0.75, 1.3  # inches around the plot
+    def for_extent(cls, extent: np.ndarray, title_lines: int = 2) -> Layout:
+        left, right, bottom = 0.85, 1.25, 1.3  # inches around the plot
+        top = 0.35 + 0.2 * max(title_lines, 2)
         aspect = float(extent[1] / extent[0]) if extent[0] > 0 else 1.0
         width = FIGURE_WIDTH - left - right
         height = width * aspect
@@ -119,25 +131,28 @@ class Layout:
         return cls((fig_w, fig_h), axes, bar)
 
 
-def _draw_temperature(bar_ax, ax, tri: Triangulation, theta: np.ndarray) -> None:
+def _draw_temperature(bar_ax, ax, tri: Triangulation, theta: np.ndarray):
+    """Bands and colour bar; the isotherms' contour set (labelled later), or None."""
     low, high = float(theta.min()), float(theta.max())
+    cmap = thermal_colour_map()
     if high - low < 1e-9:
-        shaded = ax.tripcolor(tri, theta, cmap=COLOUR_MAP, vmin=low - 0.5, vmax=high + 0.5)
+        shaded = ax.tripcolor(tri, theta, cmap=cmap, vmin=low - 0.5, vmax=high + 0.5)
         bar_ax.figure.colorbar(shaded, cax=bar_ax).set_label("Temperature θ (°C)")
-        return
+        return None
     step = isotherm_step(low, high)
     bands = np.linspace(low, high, max(2, int(np.ceil((high - low) / step * BANDS_PER_STEP))) + 1)
-    filled = ax.tricontourf(tri, theta, levels=bands, cmap=COLOUR_MAP)
+    filled = ax.tricontourf(tri, theta, levels=bands, cmap=cmap)
     filled.set_rasterized(True)  # a vector SVG of the bands would be megabytes
     lines = np.arange(np.ceil(low / step) * step, high + 1e-9, step)
     lines = lines[(lines > low + 1e-6) & (lines < high - 1e-6)]
+    isotherms = None
     if len(lines):
         isotherms = ax.tricontour(tri, theta, levels=lines, colors="k", linewidths=0.5,
                                   alpha=0.7)
-        ax.clabel(isotherms, fmt=lambda v: f"{v:g} °C", fontsize=6.5, inline_spacing=2)
     bar = bar_ax.figure.colorbar(filled, cax=bar_ax, ticks=_ticks(low, high, step))
     bar.set_label("Temperature θ (°C)", fontsize=8)
     bar.ax.tick_params(labelsize=7)
+    return isotherms
 
 
 def isotherm_step(low: float, high: float) -> float:
@@ -167,9 +182,14 @@ def _frame(ax, unit: str, low: np.ndarray, high: np.ndarray) -> None:
     ax.tick_params(labelsize=7)
 
 
-def _texts(figure: Figure, layout: Layout, result: dict[str, Any], handles: list) -> None:
+def _wrapped_title(result: dict[str, Any], extent: np.ndarray) -> str:
+    width = Layout.for_extent(extent).size[0]
+    return "\n".join(textwrap.fill(line, int(width * 11)) for line in _title(result).split("\n"))
+
+
+def _texts(figure: Figure, layout: Layout, title: str, handles: list) -> None:
     height = layout.size[1]
-    figure.text(0.02, 1 - 0.12 / height, _title(result), fontsize=10, ha="left", va="top")
+    figure.text(0.02, 1 - 0.12 / height, title, fontsize=10, ha="left", va="top")
     if handles:
         figure.legend(handles=handles, fontsize=6.5, ncols=2, frameon=False, loc="upper left",
                       bbox_to_anchor=(layout.axes[0] - 0.05, layout.axes[1] - 0.42 / height))
@@ -191,6 +211,10 @@ def _title(result: dict[str, Any]) -> str:
         verdict = condensation.get("verdict")
         tail = f" ({escape_math(str(verdict))})" if isinstance(verdict, str) else ""
         figures.append(f"fRsi = {condensation['fRsi']:.3f}{tail}")
+    mesh = result.get("mesh") if isinstance(result.get("mesh"), dict) else {}
+    if mesh.get("certified_on") == "temperatures":
+        figures.append("Temperature check: known surface temperatures meet at a corner, so "
+                       "the heat flow is unbounded and not given; mesh certified on temperatures")
     return name + ("\n" + "   ".join(figures) if figures else "")
 
 

@@ -10,11 +10,11 @@ from matplotlib import patheffects
 from matplotlib.collections import LineCollection
 from matplotlib.lines import Line2D
 
-#: Surface colours chosen to stand out against both ends of cividis (navy and yellow):
-#: warm hues for interior surfaces, cool and green ones for exterior surfaces.
-INTERIOR_COLOURS = ("#e41a1c", "#f781bf", "#ff7f00", "#a65628")
-EXTERIOR_COLOURS = ("#00d5e0", "#4daf4a", "#ffffff", "#984ea3")
-_HALO = [patheffects.withStroke(linewidth=3.4, foreground="black")]
+from coldseam.reporting.colours import EXTERIOR_COLOURS, INTERIOR_COLOURS
+from coldseam.reporting.picture_labels import Occupied, mark_point, place_mark_label
+
+#: A white halo keeps the surface colours readable over both ends of the thermal map.
+_HALO = [patheffects.withStroke(linewidth=4.0, foreground="white")]
 
 
 def draw_outlines(ax, field: dict[str, Any], scale: float) -> None:
@@ -42,7 +42,9 @@ def draw_boundaries(ax, field: dict[str, Any], scale: float) -> list:
         lines.set_path_effects(_HALO)
         ax.add_collection(lines)
         rs = " / ".join(f"{r:g}" for r in resistances)
-        label = f"{escape_math(env[:60])}: Rs {rs} m²·K/W, {side}"
+        given = "known surface temperature (Rs 0)" if resistances and not any(resistances) \
+            else f"Rs {rs} m²·K/W"
+        label = f"{escape_math(env[:60])}: {given}, {side}"
         handles.append(Line2D([], [], color=colour, linewidth=2.0, path_effects=_HALO,
                               linestyle="-" if side == "interior" else (0, (4, 1.5)),
                               label=label))
@@ -73,9 +75,11 @@ def _colour(side: str, k: int) -> str:
     return palette[k % len(palette)]
 
 
-def draw_minima(ax, field: dict[str, Any], result: dict[str, Any], scale: float) -> list:
-    """Mark and label θsi,min of the heat-flow run (circle) and of the condensation run
-    (diamond, with fRsi); one label where both fall on the same point. Legend handles."""
+def draw_minima(ax, field: dict[str, Any], result: dict[str, Any], scale: float,
+                occupied: Occupied, renderer) -> list:
+    """Mark and label θsi,min of the design run (circle) and of the fRsi run
+    (diamond, with fRsi); one label where both fall on the same point, and no label over
+    another (``picture_labels``). Legend handles."""
     marks = _minima(field, result)
     handles = []
     placed: list[tuple[np.ndarray, list[str]]] = []
@@ -83,36 +87,40 @@ def draw_minima(ax, field: dict[str, Any], result: dict[str, Any], scale: float)
         point = np.asarray(at, dtype=float) * scale
         ax.plot(*point, marker=marker, markersize=7, markerfacecolor="white",
                 markeredgecolor="black", markeredgewidth=1.2, zorder=6, linestyle="none")
+        mark_point(ax, point, occupied)
         same = next((p for p in placed if np.allclose(p[0], point, atol=1e-9 * scale)), None)
         if same is not None:
             same[1].append(text)
         else:
             placed.append((point, [text]))
     for point, texts in placed:
-        _label(ax, point, "\n".join(texts))
+        place_mark_label(ax, point, "\n".join(texts), occupied, renderer, fontsize=7.5,
+                         zorder=7, bbox=LABEL_BOX, arrowprops=LABEL_ARROW)
     if any(m == "o" for _, _, m in marks):
         handles.append(Line2D([], [], marker="o", color="black", markerfacecolor="white",
-                              linestyle="none", label="θsi,min, heat-flow run"))
+                              linestyle="none", label="θsi,min, design run"))
     if any(m == "D" for _, _, m in marks):
         handles.append(Line2D([], [], marker="D", color="black", markerfacecolor="white",
-                              linestyle="none", label="θsi,min, condensation run"))
+                              linestyle="none", label="θsi,min, fRsi run"))
     return handles
 
 
 def _minima(field: dict[str, Any], result: dict[str, Any]) -> list[tuple[list, str, str]]:
     sides = {str(b.get("environment")): b.get("side") for b in field.get("boundaries") or []}
+    known = _known_temperature_surfaces(field)
     marks = []
     minima = {env: block for env, block in (field.get("min_surface") or {}).items()
-              if sides.get(str(env), "interior") == "interior" and _valid(block)}
+              if sides.get(str(env), "interior") == "interior" and _valid(block)
+              and str(env) not in known}
     for env, block in minima.items():
         name = f", {escape_math(str(env)[:40])}" if len(minima) > 1 else ""
-        text = f"θsi,min {block['temperature']:.2f} °C (heat-flow run{name})"
+        text = f"θsi,min {block['temperature']:.2f} °C (design run{name})"
         marks.append((block["at"], text, "o"))
     condensation = field.get("condensation_min")
     if _valid(condensation):
         block = result.get("condensation") if isinstance(result.get("condensation"), dict) else {}
         rsi = block.get("interior_surface_resistance")
-        run = f"at Rsi {rsi:g}" if _num(rsi) else "(condensation run)"
+        run = f"at Rsi {rsi:g}" if _num(rsi) else "(fRsi run)"
         text = f"θsi,min {condensation['temperature']:.2f} °C {run}"
         if _num(block.get("fRsi")):
             text += f", fRsi {block['fRsi']:.3f}"
@@ -120,17 +128,18 @@ def _minima(field: dict[str, Any], result: dict[str, Any]) -> list[tuple[list, s
     return marks
 
 
-def _label(ax, point: np.ndarray, text: str) -> None:
-    x0, x1 = ax.get_xlim()
-    y0, y1 = ax.get_ylim()
-    dx = -1 if point[0] > (x0 + x1) / 2 else 1
-    dy = -1 if point[1] > (y0 + y1) / 2 else 1
-    ax.annotate(text, xy=point, xytext=(28 * dx, 24 * dy), textcoords="offset points",
-                ha="right" if dx < 0 else "left", va="top" if dy < 0 else "bottom",
-                fontsize=7.5, zorder=7,
-                bbox={"boxstyle": "round,pad=0.3", "facecolor": "white", "alpha": 0.9,
-                      "edgecolor": "0.3", "linewidth": 0.6},
-                arrowprops={"arrowstyle": "-", "color": "black", "linewidth": 0.8})
+LABEL_BOX = {"boxstyle": "round,pad=0.3", "facecolor": "white", "alpha": 0.9,
+             "edgecolor": "0.3", "linewidth": 0.6}
+LABEL_ARROW = {"arrowstyle": "-", "color": "black", "linewidth": 0.8}
+
+
+def _known_temperature_surfaces(field: dict[str, Any]) -> set[str]:
+    """Environments all of whose surfaces have Rs = 0: their temperature is given, not found,
+    so a minimum there marks nothing."""
+    resistances: dict[str, list] = {}
+    for b in field.get("boundaries") or []:
+        resistances.setdefault(str(b.get("environment")), []).append(b.get("surface_resistance"))
+    return {env for env, rs in resistances.items() if all(r == 0 for r in rs)}
 
 
 def escape_math(text: str) -> str:

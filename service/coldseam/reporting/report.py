@@ -25,11 +25,13 @@ from coldseam.reporting.html_parts import (
     is_number,
     join,
     number,
+    percent,
     point,
     section,
     table,
     tag,
 )
+from coldseam.reporting.report_cavities import cavities_block, frame_block
 from coldseam.reporting.report_results import (
     condensation_block,
     convergence_block,
@@ -41,20 +43,26 @@ from coldseam.reporting.report_results import (
 from coldseam.reporting.report_style import CSS
 
 
-def render_report(result: dict, request: dict, svg: str, *, generated: str | None = None) -> str:
-    """The report as one HTML document. ``generated``: an optional date line."""
+def render_report(result: dict, request: dict, svg: str, *, generated: str | None = None,
+                  details: dict | None = None) -> str:
+    """The report as one HTML document. ``generated``: an optional date line; ``details``:
+    the title block's ``project``, ``author``, ``checked_by`` and ``date`` (any missing one is
+    left as a blank to fill in by hand)."""
     result, request = as_dict(result), as_dict(request)
     sec = as_dict(request.get("section"))
     unit = sec.get("unit") if sec.get("unit") in ("mm", "m") else "m"
     name = str(result.get("name") or sec.get("name") or "Section")
     body = join([
         _header(name, result, generated),
+        _title_block(as_dict(details)),
         tag("div", Html(tag("strong", "Caution. ") + esc(CAUTION)), class_="caution"),
         _summary(result, unit),
         _picture(svg),
         _inputs(sec, request, result),
         results_block(result, sec, unit),
         psi_block(result),
+        frame_block(result),
+        cavities_block(result, unit),
         condensation_block(result, unit),
         convergence_block(result),
         sensitivities_block(result),
@@ -74,27 +82,54 @@ def _header(name: str, result: dict, generated: str | None) -> Html:
                                tag("h1", name), tag("p", " · ".join(meta), class_="meta")]))
 
 
+#: The title block's fields, in print order.
+TITLE_FIELDS = (("project", "Project"), ("author", "Prepared by"), ("checked_by", "Checked by"),
+                ("date", "Date"))
+
+
+def _title_block(details: dict) -> Html:
+    """Project, prepared by, checked by and date; a blank line for a missing one."""
+    cells = join(Html(tag("dt", label) + tag("dd", details.get(key) or Html("&nbsp;"),
+                                               class_=None if details.get(key) else "blank"))
+                 for key, label in TITLE_FIELDS)
+    return tag("dl", cells, class_="title-block")
+
+
 def _summary(result: dict, unit: str) -> Html:
     psi = as_dict(result.get("psi"))
     cond = as_dict(result.get("condensation"))
     mesh = as_dict(result.get("mesh"))
     interior = [(env, block) for env, block in as_dict(result.get("surfaces")).items()
                 if as_dict(block).get("side", "interior") == "interior"]
+    unbounded = "not given: the heat flow is unbounded (see Mesh convergence)"
+    singular = mesh.get("certified_on") == "temperatures"
     rows = [
-        ("L2D", number(result.get("L2D"), 4, "W/(m·K)") if "L2D" in result else None),
-        ("ψ", number(psi.get("value"), 3, "W/(m·K)") if psi else None),
-        *[(f"θsi,min ({env}), heat-flow run",
+        ("L2D", (unbounded if singular else number(result.get("L2D"), 4, "W/(m·K)"))
+         if "L2D" in result else None),
+        ("ψ", (unbounded if singular else number(psi.get("value"), 3, "W/(m·K)"))
+         if psi else None),
+        *[(f"θsi,min ({env}), design run",
            f"{number(as_dict(b).get('min_temperature'), 2, '°C')} at "
            f"{point(as_dict(b).get('at'), unit)}") for env, b in interior],
-        ("fRsi", Html(esc(number(cond.get("fRsi"), 3)) + " " + verdict_badge(cond))
-         if cond else None),
+        ("fRsi", _frsi_line(cond) if cond else None),
         ("Mesh", _mesh_line(mesh) if mesh else None),
     ]
     return section("Key figures", definitions(rows), id_="summary")
 
 
+def _frsi_line(cond: dict) -> Html:
+    if cond.get("not_assessed"):
+        return esc(f"not assessed: {cond['not_assessed']}")
+    return Html(esc(number(cond.get("fRsi"), 3)) + " " + verdict_badge(cond))
+
+
 def _mesh_line(mesh: dict) -> str:
     converged = {True: "converged", False: "NOT converged"}.get(mesh.get("converged"), DASH)
+    if mesh.get("certified_on") == "temperatures":
+        change = mesh.get("probe_change")
+        tail = f", probe temperatures changed by at most {change:.4f} K on the last " \
+            "refinement" if is_number(change) else ""
+        return f"temperatures {converged}{tail} (the heat flow is unbounded: not certified)"
     change = mesh.get("relative_change")
     tail = f", heat flow changed by {change * 100:.3f} % on the last refinement" \
         if is_number(change) else ""
@@ -128,7 +163,9 @@ def _materials_table(sec: dict, result: dict) -> Html:
         own = as_dict(given.get(str(m.get("id"))))
         source = m.get("source") or (f"library: {own['library']}" if own.get("library")
                                      else "given in the request")
-        rows.append([m.get("id"), _conductivity(m.get("conductivity", own.get("conductivity"))),
+        lam = ("air cavity: λeq per cavity, see Air cavities" if m.get("cavity") or own.get("cavity")
+               else _conductivity(m.get("conductivity", own.get("conductivity"))))
+        rows.append([m.get("id"), lam,
                      source, own.get("description") or ""])
     return table(["Material", "λ W/(m·K)", "Source", "Description"], rows, "Materials")
 
@@ -153,7 +190,9 @@ def _boundaries_table(sec: dict) -> Html:
     for b in map(as_dict, as_list(sec.get("boundaries"))):
         path = as_list(b.get("path"))
         ends = f"{_xy(path[0])} → {_xy(path[-1])} {unit}" if path else DASH
-        rows.append([b.get("environment"), number(b.get("surface_resistance"), 3),
+        rs = b.get("surface_resistance")
+        rows.append([b.get("environment"),
+                     "0: known surface temperature" if rs == 0 else number(rs, 3),
                      number(b.get("condensation_surface_resistance"), 3), ends, len(path)])
     return table(["Environment", "Rs m²·K/W", "Rsi for fRsi m²·K/W", "Path", "Points"], rows,
                  "Exposed surfaces (every other edge of the outline is adiabatic)")
@@ -189,7 +228,8 @@ def _condensation_inputs(request: dict) -> Html:
     rows = [("Interior surface resistance", number(cond.get("interior_surface_resistance"), 2,
                                                    "m²·K/W")),
             ("Indoor temperature", number(indoor.get("temperature"), 1, "°C")),
-            ("Indoor relative humidity", number(indoor.get("relative_humidity"), 2)),
+            ("Indoor relative humidity", percent(indoor.get("relative_humidity"), 0)
+             if indoor.get("relative_humidity") is not None else None),
             ("Humidity class (ISO 13788)", indoor.get("humidity_class")),
             ("Outdoor temperature", number(outdoor.get("temperature"), 1, "°C")),
             ("Fixed critical fRsi", number(cond.get("criterion"), 3))]

@@ -59,7 +59,7 @@ def _surfaces(surfaces: dict, unit: str) -> Html:
              point(b.get("at"), unit), number(b.get("max_temperature"), 2, "°C")]
             for env, b in ((e, as_dict(v)) for e, v in surfaces.items())]
     return table(["Surface", "Side", "Minimum θs", "at", "Maximum θs"], rows,
-                 "Surface temperatures, heat-flow run") if rows else Html("")
+                 "Surface temperatures, design run") if rows else Html("")
 
 
 def _probes(probes: dict) -> Html:
@@ -90,7 +90,7 @@ def psi_block(result: dict) -> Html:
 
 def _layers(layers: Any) -> Html:
     items = [f"{esc(layer.get('material'))}: d = {esc(number(layer.get('thickness'), 4))} m, "
-             f"λ = {esc(_lam(layer.get('conductivity')))}"
+             f"λ = {esc(_lam(layer.get('conductivity')))} W/(m·K)"
              for layer in map(as_dict, as_list(layers))]
     return Html("<br>".join(items))
 
@@ -106,12 +106,15 @@ def condensation_block(result: dict, unit: str) -> Html:
     c = as_dict(result.get("condensation"))
     if not c:
         return Html("")
+    if c.get("not_assessed"):
+        return section("Surface condensation and mould (ISO 13788)",
+                       tag("p", f"Not assessed: {c['not_assessed']}."), id_="condensation")
     figures = definitions([
         ("fRsi", number(c.get("fRsi"), 3)),
         ("fRsi,critical", number(c.get("fRsi_critical"), 3)),
         ("Verdict", Html(verdict_badge(c) + esc(_margin(c)))),
         ("Criterion", c.get("criterion")),
-        ("θsi,min (condensation run)", number(c.get("min_temperature"), 2, "°C")),
+        ("θsi,min (fRsi run)", number(c.get("min_temperature"), 2, "°C")),
         ("at", point(c.get("at"), unit) if c.get("at") is not None else None),
         ("Interior surface resistance", number(c.get("interior_surface_resistance"), 2,
                                                "m²·K/W")),
@@ -150,10 +153,13 @@ def _pair(a: Any, b: Any) -> str | None:
 
 
 def convergence_block(result: dict) -> Html:
-    """The mesh-convergence certificate: final mesh and the table of refinement levels."""
+    """The mesh-convergence certificate: final mesh and the table of refinement levels (on
+    temperatures when the heat flow is unbounded)."""
     mesh = as_dict(result.get("mesh"))
     if not mesh:
         return Html("")
+    if mesh.get("certified_on") == "temperatures":
+        return _temperature_certificate(mesh)
     summary = definitions([
         ("Element", mesh.get("element")),
         ("Nodes / elements", f"{mesh.get('nodes', DASH)} / {mesh.get('elements', DASH)}"),
@@ -172,19 +178,43 @@ def convergence_block(result: dict) -> Html:
     return section("Mesh convergence", summary, levels, id_="convergence")
 
 
-def sensitivities_block(result: dict) -> Html:
-    """How L2D and ψ move with each material's λ."""
-    rows = []
-    for s in map(as_dict, as_list(result.get("sensitivities"))):
-        dpsi = s.get("dpsi_dlnlambda")
-        effect = number(dpsi * math.log(1.1), 4) if is_number(dpsi) else DASH
-        rows.append([s.get("material"), number(s.get("dL2D_dlnlambda"), 4),
-                     number(dpsi, 4), effect])
-    if not rows:
-        return Html("")
-    note = tag("p", "∂X/∂ln λ is the change of X for a relative change of λ: a 10 % higher λ "
-               "changes ψ by about ∂ψ/∂ln λ × ln 1.1.", class_="note")
-    return section("Sensitivity to conductivities",
-                   table(["Material", "∂L2D/∂ln λ W/(m·K)", "∂ψ/∂ln λ W/(m·K)",
-                          "ψ change for λ +10 %"], rows), note, id_="sensitivities")
+def _temperature_certificate(mesh: dict) -> Html:
+    singular = as_dict(mesh.get("heat_flow_singular"))
+    target = as_dict(mesh.get("target")).get("temperature_change")
+    summary = definitions([
+        ("Certified on", "temperatures (probes and surface minima)"),
+        ("Why", singular.get("reason")),
+        ("Element", mesh.get("element")),
+        ("Nodes / elements", f"{mesh.get('nodes', DASH)} / {mesh.get('elements', DASH)}"),
+        ("Largest probe change on the last refinement", number(mesh.get("probe_change"), 4,
+                                                               "K")),
+        ("Target", number(target, 3, "K") if is_number(target) else None),
+        ("Converged", {True: "yes", False: "NO"}.get(mesh.get("converged"))),
+    ])
+    rows = [[level.get("nodes", DASH), level.get("elements", DASH),
+             number(level.get("probe_change"), 4), number(level.get("min_temperature"), 3)]
+            for level in map(as_dict, as_list(mesh.get("levels")))]
+    levels = table(["Nodes", "Elements", "Largest probe change K", "θsi,min °C"], rows,
+                   "Refinement levels") if rows else ""
+    return section("Mesh convergence", summary, levels, id_="convergence")
 
+
+def sensitivities_block(result: dict) -> Html:
+    """How L2D, and ψ when it was computed, move with each material's λ."""
+    entries = list(map(as_dict, as_list(result.get("sensitivities"))))
+    if not entries:
+        return Html("")
+    with_psi = any(is_number(s.get("dpsi_dlnlambda")) for s in entries)
+    symbol = "ψ" if with_psi else "L2D"
+    rows = []
+    for s in entries:
+        main = s.get("dpsi_dlnlambda") if with_psi else s.get("dL2D_dlnlambda")
+        effect = number(main * math.log(1.1), 4) if is_number(main) else DASH
+        rows.append([s.get("material"), number(s.get("dL2D_dlnlambda"), 4)]
+                    + ([number(main, 4)] if with_psi else []) + [effect])
+    headers = ["Material", "∂L2D/∂ln λ W/(m·K)"] + (["∂ψ/∂ln λ W/(m·K)"] if with_psi else [])
+    note = tag("p", f"∂X/∂ln λ is the change of X for a relative change of λ: a 10 % higher λ "
+               f"changes {symbol} by about ∂{symbol}/∂ln λ × ln 1.1.", class_="note")
+    return section(f"Sensitivity of {symbol} to the conductivities λ",
+                   table(headers + [f"{symbol} change for λ +10 % W/(m·K)"], rows), note,
+                   id_="sensitivities")

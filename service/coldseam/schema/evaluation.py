@@ -37,6 +37,21 @@ class Flanking(_Strict):
         return self
 
 
+class CalibrationPanel(_Strict):
+    width: float = Field(gt=0, description="Visible width b_p of the insulation panel put in "
+                         "place of the glazing, in the section unit.")
+    u_value: float = Field(gt=0, le=100, description="U-value U_p of the panel (its 1D "
+                           "U = 1/(Rsi + d/λ + Rse)) in W/(m²·K).")
+
+
+class FrameRequest(_Strict):
+    """U_f by the calibration-panel method of ISO 10077-2: U_f = (L2D − U_p·b_p) / b_f."""
+
+    panel: CalibrationPanel
+    frame_width: float = Field(gt=0, description="Projected frame width b_f, in the section "
+                               "unit.")
+
+
 class PsiRequest(_Strict):
     flanking: list[Flanking] = Field(default_factory=list)
     dimensions: Literal["internal", "overall_internal", "external"] | None = Field(
@@ -44,6 +59,9 @@ class PsiRequest(_Strict):
     environments: tuple[str, str] | None = Field(
         default=None, description="The pair of environments ψ is between (needed with more "
         "than two environments), interior first.")
+    frame: FrameRequest | None = Field(
+        default=None, description="Window frame: U_f from L2D of the frame with an insulation "
+        "panel in place of the glazing (ISO 10077-2).")
 
 
 class IndoorClimate(_Strict):

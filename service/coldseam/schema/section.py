@@ -8,6 +8,7 @@ from typing import Annotated, Literal
 from pydantic import BaseModel, ConfigDict, Field, field_validator, model_validator
 
 from coldseam.errors import InvalidSection
+from coldseam.schema.cavity import Cavity
 
 #: Smallest λ taken, W/(m·K): ten times below vacuum insulation; far smaller ones make the
 #: section's conductances span more than float64 keeps, and the energy balance goes.
@@ -44,6 +45,10 @@ class Material(_Strict):
         "`conductivity` is not given.",
     )
     description: str | None = Field(default=None, max_length=400)
+    cavity: Cavity | None = Field(
+        default=None,
+        description="An air cavity instead of a solid: λeq is computed per region from its "
+        "geometry (ISO 10077-2). Exclusive with `conductivity` and `library`.")
 
     @field_validator("conductivity")
     @classmethod
@@ -63,9 +68,16 @@ class Material(_Strict):
 
     @model_validator(mode="after")
     def _has_conductivity(self) -> Material:
-        if self.conductivity is None and self.library is None:
+        if self.cavity is not None and any(getattr(self, name, None) is not None
+                                           for name in ("density", "specific_heat")):
+            raise ValueError(f"material '{self.id}' is an air cavity: its heat capacity is "
+                             "zero, so it takes no density or specific_heat")
+        if self.cavity is not None and (self.conductivity is not None or self.library):
+            raise ValueError(f"material '{self.id}' is a cavity: give either `cavity` or a "
+                             "conductivity/library id, not both (λeq of a cavity is computed)")
+        if self.conductivity is None and self.library is None and self.cavity is None:
             raise ValueError(
-                f"material '{self.id}' needs a conductivity in W/(m·K) or a library id"
+                f"material '{self.id}' needs a conductivity in W/(m·K), a library id or a `cavity`"
             )
         return self
 

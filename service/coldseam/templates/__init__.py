@@ -24,7 +24,9 @@ from coldseam.templates import (
     eaves,
     floor_slab,
     framed_wall,
+    glazing_edge,
     ground_floor,
+    window_installation,
     window_reveal,
 )
 from coldseam.templates.base import Parameter, TemplateInfo, resolve_parameters
@@ -34,7 +36,7 @@ logger = logging.getLogger(__name__)
 __all__ = ["Parameter", "TemplateInfo", "build", "get_template", "list_templates"]
 
 _MODULES: tuple[ModuleType, ...] = (corner, floor_slab, balcony, window_reveal, eaves,
-                                    ground_floor, framed_wall)
+                                    ground_floor, framed_wall, window_installation, glazing_edge)
 _BY_ID: dict[str, ModuleType] = {m.INFO.id: m for m in _MODULES}
 
 

@@ -150,6 +150,8 @@ def resolve_parameters(info: TemplateInfo, given: Any) -> dict[str, Any]:
 
 def _check(p: Parameter, value: Any) -> Any:
     if p.kind == "choice":
+        if isinstance(value, int) and not isinstance(value, bool) and str(value) in p.options:
+            value = str(value)  # a count option ("3") given as a number, e.g. from a CSV cell
         if value not in p.options:
             raise invalid(p.name, f"{p.name} must be one of {', '.join(p.options)}; "
                           f"got {value!r}")

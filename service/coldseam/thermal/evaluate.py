@@ -20,7 +20,7 @@ from coldseam import CAUTION, ENGINE_VERSION
 from coldseam.errors import LimitExceeded
 from coldseam.meshing.estimate import check_coarsest
 from coldseam.schema.evaluation import EvaluationRequest
-from coldseam.thermal import results
+from coldseam.thermal import results, singular
 from coldseam.thermal.field import field_arrays, plain
 from coldseam.thermal.levels import (
     ISO_RULE,
@@ -64,16 +64,20 @@ def evaluate(request: EvaluationRequest, progress: Progress | None = None) -> Ev
     pair = results.psi_pair(model)
     report("meshing", 0.05)
     check_coarsest(model.classified, request.options.max_nodes)
-    levels, solution, warnings = _certify(model, flanking, pair, report)
+    meaning = singular.assess(model)
+    levels, solution, warnings = _certify(model, flanking, pair, report, meaning)
     report("post-processing", 0.9)
     result = _result(model, flanking, pair, levels, solution, warnings)
+    if meaning.singular or meaning.frsi:
+        result = _jsonable(_without_meaningless(result, meaning, levels, model))
     _release_solvers(solution)  # the field needs temperatures only: free the factorisations
     field = field_arrays(model, solution)
     report("post-processing", 1.0)
     return Evaluation(result, field)
 
 
-def _certify(model: ThermalModel, flanking: list[FlankingU], pair, report: Progress):
+def _certify(model: ThermalModel, flanking: list[FlankingU], pair, report: Progress,
+             meaning: singular.Meaning):
     options = model.request.options
     order = 2 if options.element == "P2" else 1
     levels: list[LevelFigures] = []
@@ -90,12 +94,12 @@ def _certify(model: ThermalModel, flanking: list[FlankingU], pair, report: Progr
                             f"would exceed the node limit of {options.max_nodes}")
             break
         solution = solve_level(model, mesh, probes, order)
-        figures = results.level_figures(model, solution, flanking, pair)
+        figures = results.level_figures(model, solution, flanking, pair, meaning)
         if levels:
             compare(levels[-1], figures)
         levels.append(figures)
         report("solving", 0.1 + 0.8 * (1 - 0.6 ** (k + 1)))
-        if met(levels, options.accuracy):
+        if met(levels, options.accuracy, meaning.singular):
             break
         if k + 1 >= options.max_levels:
             warnings.append(f"refinement stopped at the level limit ({options.max_levels}) "
@@ -137,13 +141,65 @@ def _result(model, flanking, pair, levels, solution: LevelSolution, warnings) ->
         out["sensitivities"] = results.sensitivities(model, solution, flanking, pair)
     warnings = warnings + results.energy_warnings(model, solution)
     warnings += results.cutoff_warnings(model, solution)
-    out["materials"] = [{"id": m.id, "conductivity": list(m.conductivity), "source": m.source}
-                        for m in model.materials]
+    out["materials"] = results.materials_block(model)
+    out["cavities"] = [{k: v for k, v in c.items() if k != "material_index" and k[0] != "_"}
+                       for c in model.cavities]
     out["warnings"] = warnings
     out["caution"] = CAUTION
     out["engine_version"] = ENGINE_VERSION
     out["name"] = model.section.name
     return _jsonable(out)
+
+
+def _without_meaningless(out: dict, meaning: singular.Meaning, levels, model) -> dict:
+    """Figures the known temperatures make meaningless become null with the reason: the heat
+    flow (and L2D, ψ, sensitivities) of a singular section, whose certificate is then on
+    temperatures; fRsi and the verdict where the interior surface meets a known temperature."""
+    notes = []
+    if meaning.singular:
+        reason = singular.heat_flow_reason(meaning.heat_flow)
+        notes.append("heat flow singular: " + reason)
+        out["heat_flows"] = {env: None for env in out["heat_flows"]}
+        if "L2D" in out:
+            out["L2D"] = None
+        if "coupling_coefficients" in out:
+            out["coupling_coefficients"] = None
+        if out.get("psi"):
+            out["psi"].update(value=None, L2D=None, not_given=reason)
+        out.pop("sensitivities", None)
+        out["mesh"] = _temperature_certificate(out["mesh"], levels, model, meaning)
+        if not model.section.probes and levels[-1].design_min_temperature is None and \
+                levels[-1].min_temperature is None:
+            notes.append("no temperature to certify the mesh on: add probes (section.probes) "
+                         "where the temperatures are wanted")
+    if meaning.frsi and out.get("condensation"):
+        reason = singular.frsi_reason(meaning.frsi)
+        notes.append("no fRsi: " + reason)
+        keep = ("environment", "indoor_temperature", "outdoor_temperature",
+                "indoor_relative_humidity", "interior_surface_resistance")
+        block = out["condensation"]
+        out["condensation"] = {**{k: block[k] for k in keep if k in block},
+                               "fRsi": None, "fRsi_critical": None, "min_temperature": None,
+                               "at": None, "verdict": None, "not_assessed": reason}
+    out["warnings"] = notes + out["warnings"]
+    return out
+
+
+def _temperature_certificate(mesh: dict, levels, model, meaning) -> dict:
+    """``mesh`` of a singular section: converged and target_met on the temperatures."""
+    accuracy = model.request.options.accuracy
+    certificate = {**mesh, "relative_change": None, "estimated_remaining_change": None,
+                     "compared_with_nodes": None}
+    certificate.update(
+        certified_on="temperatures",
+        heat_flow_singular=singular.singular_block(meaning.heat_flow),
+        converged=met(levels, "iso", singular=True),
+        target_met=met(levels, accuracy, singular=True),
+        probe_change=levels[-1].probe_change,
+        temperature_change=levels[-1].temperature_change,
+        levels=[{**level, "heat_flow": None, "coupling_sum": None, "relative_change": None}
+                for level in mesh["levels"]])
+    return certificate
 
 
 def _jsonable(value):

@@ -10,7 +10,10 @@ below, which is what ``field_document`` returns and what ``/field`` answers.
  "heat_flux": [|q| W/m²] per triangle, "material": [k] per triangle, "materials": [{"id", "conductivity"}],
  "pieces": [{"material", "polygon", "holes"}], "boundaries": [{"environment", "side",
  "surface_resistance", "segments"}], "adiabatic": [segments],
- "min_surface": {env: {"temperature", "at"}}, "condensation_min": {...} | null}
+ "min_surface": {env: {"temperature", "at"}}, "condensation_min": {...} | null,
+ "cavities": [{"material", "region", "cavity", "width", "thickness", "heat_flow_direction",
+ "equivalent_conductivity", "ventilation", "rings"}]} (a cavity's own materials entry also
+ carries "cavity": the same fields without the rings)
 """
 
 from __future__ import annotations
@@ -73,8 +76,8 @@ def field_arrays(model: ThermalModel, solution: LevelSolution) -> dict:
         "temperature": np.round(theta, 4),
         "heat_flux": np.round(np.repeat(flux, repeat), 3),
         "material": np.repeat(space.mesh.material, repeat).astype(np.int32),
-        "materials": [{"id": m.id, "conductivity": list(m.conductivity)}
-                      for m in model.materials],
+        "materials": _materials(model),
+        "cavities": [_cavity(c) for c in model.cavities],
         "pieces": [{"material": model.materials[k].id,
                     "polygon": np.round(poly.exterior.coords, 7).tolist(),
                     "holes": [np.round(r.coords, 7).tolist() for r in poly.interiors]}
@@ -85,6 +88,28 @@ def field_arrays(model: ThermalModel, solution: LevelSolution) -> dict:
                         for env, block in _surface_minima(model, solution).items()},
         "condensation_min": _condensation_min(model, solution),
     }
+
+
+def _materials(model: ThermalModel) -> list[dict]:
+    """Each material entry the triangles index; a cavity's own entry says which cavity."""
+    by_index = {c["material_index"]: c for c in model.cavities if "material_index" in c}
+    out = []
+    for k, m in enumerate(model.materials):
+        entry = {"id": m.id, "conductivity": list(m.conductivity)}
+        if k in by_index:
+            entry["cavity"] = _cavity(by_index[k], rings=False)
+        out.append(entry)
+    return out
+
+
+def _cavity(c: dict, rings: bool = True) -> dict:
+    """A cavity for drawing: its result fields and (with ``rings``) its outline, metres."""
+    keys = ("material", "region", "cavity", "width", "thickness", "heat_flow_direction",
+            "equivalent_conductivity", "ventilation", "exposed_to")
+    out = {k: c[k] for k in keys if k in c}
+    if rings:
+        out["rings"] = c["_rings"]
+    return out
 
 
 @contextmanager
@@ -121,9 +146,11 @@ def _surface_minima(model, solution) -> dict:
 
 
 def _condensation_min(model, solution) -> dict | None:
+    from coldseam.thermal.singular import assess
+
     run = solution.condensation
-    if run is None:
-        return None
+    if run is None or assess(model).frsi:
+        return None  # none, or fixed by a known temperature the interior surface meets
     minimum = interior_minimum(model, run)
     if minimum is None:
         return None

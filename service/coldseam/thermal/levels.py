@@ -65,10 +65,12 @@ class LevelFigures:
     relative_change: float | None = None
     temperature_change: float | None = None
     design_temperature_change: float | None = None
+    probe_change: float | None = None  # largest change of a probe temperature, K
+    probe_values: tuple[float, ...] = ()  # probe temperatures, °C (not in the document)
 
     def as_dict(self) -> dict:
         return {k: (None if v is None else round(float(v), 10) if isinstance(v, float) else v)
-                for k, v in self.__dict__.items()}
+                for k, v in self.__dict__.items() if k != "probe_values"}
 
 
 def first_factor(classified: Classified, accuracy: str = "default") -> float:
@@ -157,6 +159,9 @@ def compare(previous: LevelFigures, current: LevelFigures) -> None:
             previous.design_min_temperature is not None):
         current.design_temperature_change = abs(current.design_min_temperature -
                                                 previous.design_min_temperature)
+    if current.probe_values and len(previous.probe_values) == len(current.probe_values):
+        current.probe_change = float(np.max(np.abs(np.subtract(current.probe_values,
+                                                               previous.probe_values))))
 
 
 def iso_comparison(levels: list[LevelFigures]) -> tuple[float, int] | None:
@@ -204,24 +209,46 @@ def tail_estimate(values: list[float | None], relative: bool) -> float | None:
     return last / scale * r / (1 - r)
 
 
-def met(levels: list[LevelFigures], accuracy: str) -> bool:
+def met(levels: list[LevelFigures], accuracy: str, singular: bool = False) -> bool:
     """Target met: the last change and the estimated remaining change together are below it,
     for the heat flow (relative) and for the minimum interior surface temperature (K) of both
-    the design run and the fRsi run."""
+    the design run and the fRsi run.
+
+    ``singular``: the heat flow is unbounded (known temperatures of two environments meet, see
+    ``coldseam.thermal.singular``), so it is not watched; the temperatures are, the probes'
+    (largest change) as well as the surface minima, and at least one of them must exist."""
     flow_target, temperature_target = TARGETS[accuracy]
     last = levels[-1]
     if last.relative_change is None:
         return False
-    tail = tail_estimate([level.coupling_sum for level in levels], relative=True)
-    if tail is None or last.relative_change + tail >= flow_target:
-        return False
-    for values, change in (
-            ([level.min_temperature for level in levels], last.temperature_change),
-            ([level.design_min_temperature for level in levels],
-             last.design_temperature_change)):
+    watched = [([level.min_temperature for level in levels], last.temperature_change),
+               ([level.design_min_temperature for level in levels],
+                last.design_temperature_change)]
+    if singular:
+        watched.append((_cumulative([level.probe_change for level in levels]),
+                        last.probe_change))
+        if all(values[-1] is None for values, _ in watched):
+            return False
+    else:
+        tail = tail_estimate([level.coupling_sum for level in levels], relative=True)
+        if tail is None or last.relative_change + tail >= flow_target:
+            return False
+    for values, change in watched:
         if values[-1] is None:
             continue
         tail = tail_estimate(values, relative=False)
         if tail is None or change is None or change + tail >= temperature_target:
             return False
     return True
+
+
+def _cumulative(changes: list[float | None]) -> list[float | None]:
+    """A sequence whose successive changes are ``changes`` (for ``tail_estimate``), None
+    when there are no probes."""
+    if changes[-1] is None:
+        return [None] * len(changes)
+    out, total = [0.0], 0.0
+    for change in changes[1:]:
+        total += change or 0.0
+        out.append(total)
+    return out

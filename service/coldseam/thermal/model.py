@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 
@@ -10,6 +10,10 @@ from coldseam.geometry.outline import Classified, classify
 from coldseam.geometry.partition import build_partition
 from coldseam.schema.evaluation import EvaluationRequest
 from coldseam.schema.section import Section
+from coldseam.thermal.cavities import apply_cavities, check_cavity_regions
+from coldseam.thermal.cavity_formula import C1
+from coldseam.thermal.cavity_split import split_narrowings
+from coldseam.thermal.cavity_vent import open_ventilated
 
 
 @dataclass
@@ -17,6 +21,8 @@ class MaterialUse:
     id: str
     conductivity: tuple[float, float]  # [λx, λy] W/(m·K)
     source: str
+    #: An air cavity (a cavity material, or one cavity's own λeq entry): no heat capacity.
+    cavity: bool = False
 
 
 @dataclass
@@ -29,6 +35,7 @@ class ThermalModel:
     boundary_env: np.ndarray  # (Bd,) environment index per section boundary
     boundary_resistance: np.ndarray  # (Bd,) design Rs, m²K/W
     boundary_condensation_resistance: np.ndarray  # (Bd,) Rs for the fRsi run
+    cavities: list[dict] = field(default_factory=list)  # result entries, see thermal.cavities
 
     @property
     def section(self) -> Section:
@@ -48,14 +55,16 @@ class ThermalModel:
 
 def resolve_materials(section: Section) -> list[MaterialUse]:
     uses = []
-    library_ids = [m for m in section.materials if m.conductivity is None]
+    library_ids = [m for m in section.materials if m.conductivity is None and m.cavity is None]
     resolved = {}
     if library_ids:
         from coldseam.materials import resolve_materials as from_library
 
         resolved = from_library(section)
     for m in section.materials:
-        if m.conductivity is not None:
+        if m.cavity is not None:  # λeq per cavity: see coldseam.thermal.cavities
+            uses.append(MaterialUse(m.id, (C1, C1), "air cavity", cavity=True))
+        elif m.conductivity is not None:
             lam = m.conductivity if isinstance(m.conductivity, tuple) else (m.conductivity,) * 2
             source = "given in the request"
             if m.library:
@@ -70,7 +79,14 @@ def resolve_materials(section: Section) -> list[MaterialUse]:
 def prepare(request: EvaluationRequest) -> ThermalModel:
     section = request.section
     materials = resolve_materials(section)
+    check_cavity_regions(section)
     partition = build_partition(section)
+    cavity_kinds = {k for k, m in enumerate(section.materials) if m.cavity is not None}
+    ventilated: list[dict] = []
+    if cavity_kinds:
+        split_narrowings(partition, cavity_kinds)
+        section, ventilated = open_ventilated(section, partition)
+        request = request.model_copy(update={"section": section})
     classified = classify(section, partition)
     env_index = {e.id: k for k, e in enumerate(section.environments)}
     default_rsi = (request.condensation.interior_surface_resistance
@@ -82,6 +98,8 @@ def prepare(request: EvaluationRequest) -> ThermalModel:
         (b.condensation_surface_resistance if b.condensation_surface_resistance is not None
          else default_rsi) if interior[boundary_env[k]] else b.surface_resistance
         for k, b in enumerate(section.boundaries)], float)
-    return ThermalModel(request, classified, materials,
-                        np.array([e.temperature for e in section.environments], float),
-                        interior, boundary_env, design, condensation)
+    model = ThermalModel(request, classified, materials,
+                         np.array([e.temperature for e in section.environments], float),
+                         interior, boundary_env, design, condensation)
+    model.cavities = apply_cavities(model) + ventilated
+    return model

@@ -10,6 +10,7 @@ from coldseam.thermal import humidity
 from coldseam.thermal.levels import LevelFigures
 from coldseam.thermal.model import ThermalModel
 from coldseam.thermal.psi import FlankingU
+from coldseam.thermal.singular import Meaning
 from coldseam.thermal.solve import LevelSolution, Run
 
 BALANCE = 1e-4  # ISO 10211: Σ flows / (½ Σ |flows|)
@@ -61,20 +62,25 @@ def interior_minimum(model: ThermalModel, run: Run) -> tuple[float, int] | None:
     return float(theta[k]), k
 
 
-def level_figures(model, solution: LevelSolution, flanking: list[FlankingU], pair):
+def level_figures(model, solution: LevelSolution, flanking: list[FlankingU], pair,
+                  meaning: Meaning | None = None):
+    """The figures of one level the certificate compares; minima that a known temperature
+    fixes by construction (``meaning``, see ``coldseam.thermal.singular``) are left out."""
     run = solution.design
     coupling = run.coupling
     upper = coupling[np.triu_indices(len(coupling), 1)]
     sum_ul = sum(f.u_value * f.length for f in flanking)
     psi = float(coupling[pair] - sum_ul) if (pair and model.request.psi) else None
     checked = solution.condensation or run
-    minimum = interior_minimum(model, checked)
-    design_minimum = interior_minimum(model, run)
+    minimum = None if meaning and meaning.frsi else interior_minimum(model, checked)
+    design_minimum = None if meaning and meaning.design_minimum else interior_minimum(model, run)
     return LevelFigures(
         nodes=solution.mesh.nodes, dofs=solution.space.dofs, elements=solution.mesh.elements,
         heat_flow=float(0.5 * np.abs(run.heat_flows).sum()), coupling_sum=float(upper.sum()),
-        psi=psi, min_temperature=None if minimum is None else minimum[0],
-        design_min_temperature=None if design_minimum is None else design_minimum[0])
+        psi=None if meaning and meaning.singular else psi,
+        min_temperature=None if minimum is None else minimum[0],
+        design_min_temperature=None if design_minimum is None else design_minimum[0],
+        probe_values=tuple(float(v) for v in run.theta[solution.probe_nodes]))
 
 
 def heat_flow_block(model: ThermalModel, solution: LevelSolution) -> dict:
@@ -98,11 +104,25 @@ def psi_block(model, solution, flanking: list[FlankingU], pair) -> dict | None:
     l2d = float(0.5 * (coupling[pair] + coupling[pair[::-1]]))
     sum_ul = sum(f.u_value * f.length for f in flanking)
     ids = model.env_ids
-    return {
+    out = {
         "value": l2d - sum_ul, "L2D": l2d, "sum_UL": sum_ul, "dimensions": psi.dimensions,
         "environments": [ids[pair[0]], ids[pair[1]]],
         "flanking": [_flanking_dict(model, f) for f in flanking],
     }
+    if psi.frame is not None:
+        out["frame"] = frame_block(psi.frame, l2d, model.section.scale)
+    return out
+
+
+def frame_block(frame, l2d: float, scale: float) -> dict:
+    """U_f = (L2D − U_p·b_p) / b_f, W/(m²·K) (ISO 10077-2 calibration panel); widths in m."""
+    panel_width, frame_width = frame.panel.width * scale, frame.frame_width * scale
+    panel_flow = frame.panel.u_value * panel_width
+    return {"u_frame": (l2d - panel_flow) / frame_width, "L2D": l2d,
+            "frame_width": frame_width, "panel": {"width": panel_width,
+                                                  "u_value": frame.panel.u_value,
+                                                  "UL": panel_flow},
+            "source": "U_f = (L2D − U_p·b_p)/b_f, ISO 10077-2 calibration-panel method"}
 
 
 def _flanking_dict(model, f: FlankingU) -> dict:
@@ -186,8 +206,20 @@ def interior_weightings(model: ThermalModel, run: Run) -> dict:
     return out
 
 
+def materials_block(model) -> list[dict]:
+    """The section's materials with λ and source; a cavity material's λeq is per cavity
+    (listed under ``cavities``), so its conductivity here is None."""
+    out = []
+    for section_material, use in zip(model.section.materials, model.materials, strict=False):
+        cavity = section_material.cavity is not None
+        out.append({"id": use.id, "conductivity": None if cavity else list(use.conductivity),
+                    "source": use.source, **({"cavity": True} if cavity else {})})
+    return out
+
+
 def sensitivities(model, solution: LevelSolution, flanking, pair) -> list[dict]:
-    """∂L2D/∂ln λ and ∂ψ/∂ln λ per material (W/(m·K) per unit relative change of λ)."""
+    """∂L2D/∂ln λ and, when ψ is requested, ∂ψ/∂ln λ per material (W/(m·K) per unit
+    relative change of λ)."""
     run = solution.design
     a, b = pair
     groups = np.flatnonzero(model.boundary_env == a)
@@ -197,8 +229,12 @@ def sensitivities(model, solution: LevelSolution, flanking, pair) -> list[dict]:
                                          weight=run.unit[:, a])
     dl2d = -dflow  # L_ab = −Φ_a with θ_b = 1
     dsum_ul = sum((f.length * f.dU_dlnlambda(n) for f in flanking), np.zeros(n))
+    with_psi = model.request.psi is not None  # without a ψ request there is no ψ to move
+    cavity_bases = {k for k, m in enumerate(model.section.materials) if m.cavity is not None}
     return [{"material": m.id, "dL2D_dlnlambda": float(dl2d[i]),
-             "dpsi_dlnlambda": float(dl2d[i] - dsum_ul[i])} for i, m in enumerate(model.materials)]
+             "dpsi_dlnlambda": float(dl2d[i] - dsum_ul[i]) if with_psi else None}
+            for i, m in enumerate(model.materials)
+            if i not in cavity_bases]  # a cavity material's λ is per cavity, listed as such
 
 
 def energy_warnings(model, solution: LevelSolution) -> list[str]:
