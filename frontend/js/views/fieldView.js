@@ -72,16 +72,11 @@ function draw(canvas, overlay, surface, model, view) {
     points, triangles, values: temperature, lo: model.lo, hi: model.hi, lut: thermalLut() });
   ctx.putImageData(image, 0, 0);
   overlay.setAttribute("viewBox", `0 0 ${width} ${height}`);
-<<<<<<< HEAD
   const area = { x0: 0, y0: 0, x1: width, y1: height };
   const taken = [];
   const markers = minMarkers(model.field, view, taken, area); // marks first: isotherm labels keep clear
-  replace(overlay, pieces(model.field, view), isothermPaths(model, view, taken, area), edges(model, view),
-    markers, scaleBar(view, "m", height));
-=======
-  replace(overlay, pieces(model.field, view), cavities(model.field, view), isothermPaths(model, view), edges(model, view),
-    minMarkers(model.field, view), scaleBar(view, "m", height));
->>>>>>> cavities
+  replace(overlay, pieces(model.field, view), cavities(model.field, view),
+    isothermPaths(model, view, taken, area), edges(model, view), markers, scaleBar(view, "m", height));
 }
 
 function pieces(field, view) {
@@ -89,10 +84,6 @@ function pieces(field, view) {
     d: [p.polygon, ...(p.holes || [])].map((ring) => ringPath(view, ring)).join(""), class: "piece" })));
 }
 
-<<<<<<< HEAD
-function isothermPaths(model, view, taken, area) {
-  return s("g", { class: "isotherms" }, model.lines.map(({ level, lines }) => s("g", {},
-=======
 /** Air cavities in Coldseam's hatch; each path names its cavity for tests and tools. */
 function cavities(field, view) {
   const drawn = (field.cavities || []).filter((c) => (c.rings || []).length);
@@ -103,11 +94,8 @@ function cavities(field, view) {
       fill: `url(#${HATCH_ID})`, "fill-rule": "evenodd", "data-region": c.region })));
 }
 
-function isothermPaths(model, view) {
-  const step = model.levels.length > 6 ? 2 : 1;
-  const placed = [];
-  return s("g", { class: "isotherms" }, model.lines.map(({ level, lines }, k) => s("g", {},
->>>>>>> cavities
+function isothermPaths(model, view, taken, area) {
+  return s("g", { class: "isotherms" }, model.lines.map(({ level, lines }) => s("g", {},
     lines.map((line) => s("path", { d: linePath(view, line), class: "isotherm" })),
     isothermLabel(level, lines, view, taken, area))));
 }

@@ -143,11 +143,8 @@ function hover(event, surface, tip, model, view) {
 function legend(model) {
   const mats = [...model.colours].map(([id, colour]) => {
     const m = model.materials.get(id) || {};
-<<<<<<< HEAD
-    const lam = m.conductivity !== undefined ? `λ ${lambdaText(m.conductivity)} W/(m·K)` : `library ${m.library}`;
-=======
-    const lam = m.cavity ? "air cavity" : m.conductivity !== undefined ? `λ ${lambdaText(m.conductivity)}` : `library ${m.library}`;
->>>>>>> cavities
+    const lam = m.cavity ? "air cavity" : m.conductivity !== undefined
+      ? `λ ${lambdaText(m.conductivity)} W/(m·K)` : `library ${m.library}`;
     return h("li", { title: m.libraryName || m.description || "" }, swatch(colour, "fill"), h("span", {}, id),
       h("span", { class: "muted" }, lam));
   });

@@ -26,12 +26,9 @@ from matplotlib.figure import Figure
 from matplotlib.tri import Triangulation
 
 from coldseam import CAUTION
-<<<<<<< HEAD
 from coldseam.reporting.colours import thermal_colour_map
-from coldseam.reporting.picture_labels import label_isotherms, occupied_for
-=======
 from coldseam.reporting.picture_cavities import draw_cavities
->>>>>>> cavities
+from coldseam.reporting.picture_labels import label_isotherms, occupied_for
 from coldseam.reporting.picture_marks import (
     draw_boundaries,
     draw_minima,
