@@ -28,8 +28,20 @@ if ! command -v chromium >/dev/null 2>&1; then
   fi
 fi
 
-python3 -m ruff check service tests $( [ -d bench ] && echo bench )
-if command -v node >/dev/null 2>&1; then
-  node --test frontend/tests/
+# node runs the page's unit tests; LibreOffice Calc (headless) runs the spreadsheet test.
+if ! command -v node >/dev/null 2>&1 && [ "$(id -u)" = "0" ]; then
+  apt-get update -qq && DEBIAN_FRONTEND=noninteractive apt-get install -y -qq nodejs >/dev/null
 fi
+if ! command -v soffice >/dev/null 2>&1 && [ "$(id -u)" = "0" ]; then
+  apt-get update -qq && DEBIAN_FRONTEND=noninteractive apt-get install -y -qq \
+    --no-install-recommends libreoffice-calc >/dev/null
+fi
+if ! command -v node >/dev/null 2>&1; then
+  echo "node is missing: the page's unit tests cannot run; install Debian's nodejs package" \
+    "(sudo apt-get install nodejs)" >&2
+  exit 1
+fi
+
+python3 -m ruff check service tests $( [ -d bench ] && echo bench )
+node --test frontend/tests/
 python3 -m pytest "$@"

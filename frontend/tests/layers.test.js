@@ -48,3 +48,37 @@ test("layer content in words", () => {
   assert.equal(layerContent({ closed_shapes: 1, open_paths: 2 }), "1 closed shape, 2 open paths");
   assert.equal(layerContent({}), "nothing usable");
 });
+
+test("surface layers of one side share one environment", async () => {
+  const { environmentFor } = await import("../js/lib/layers.js");
+  assert.equal(environmentFor("interior"), "inside");
+  assert.equal(environmentFor("exterior"), "outside");
+});
+
+test("defaults by side come from the server's climate when it sends one", async () => {
+  const { sideDefaults } = await import("../js/lib/layers.js");
+  assert.deepEqual(sideDefaults(null).temperature, { interior: 20, exterior: -5 });
+  const d = sideDefaults({ indoor_temperature: 21, outdoor_temperature: -12, surface_resistance: { interior: 0.13, exterior: 0.04 } });
+  assert.deepEqual(d.temperature, { interior: 21, exterior: -12 });
+  assert.equal(d.rs.exterior, 0.04);
+});
+
+test("a saved layer map gives back the row choices it was made from", async () => {
+  const { choiceFromRule, matchLayerMap } = await import("../js/lib/layers.js");
+  const base = { role: "material", material: "x", library: "", conductivity: "", order: "", environment: "x",
+    side: "interior", temperature: "20", surface_resistance: "0.13" };
+  const rules = [
+    { material: "pir", conductivity: 0.022 },
+    { material: "c", library: "concrete_2000", order: 2 },
+    { environment: "outside", temperature: -5, side: "exterior", surface_resistance: 0.04 },
+    { ignore: true },
+  ];
+  for (const rule of rules) assert.deepEqual(ruleFor(choiceFromRule(rule, base)), rule);
+  assert.equal(choiceFromRule({ colour: "red" }, base), null);
+  const env = choiceFromRule({ environment: "inside", side: "interior" }, base);
+  assert.equal(env.temperature, "20");  // not in the rule: the row's default stays
+  const matched = matchLayerMap(["PIR", "Surf-Ext", "NEW"], { pir: rules[0], "SURF-EXT": rules[2], OLD: rules[3] });
+  assert.deepEqual(Object.keys(matched.rules), ["PIR", "Surf-Ext"]);
+  assert.deepEqual(matched.unused, ["OLD"]);
+  assert.deepEqual(matched.missing, ["NEW"]);
+});

@@ -37,8 +37,13 @@ def build_parser() -> argparse.ArgumentParser:
     serve.add_argument("--workers", type=int, help="evaluation worker processes")
     serve.set_defaults(command=cmd_serve)
     evaluate = commands.add_parser("evaluate", help="evaluate one request or section file")
-    evaluate.add_argument("file", help="an evaluation request or a bare section (JSON); - "
-                          "for standard input")
+    evaluate.add_argument("file", help="an evaluation request or a bare section (JSON), or "
+                          "a DXF drawing (with --layers); - for standard input")
+    evaluate.add_argument("--layers", metavar="MAP.json", help="layer map of a DXF drawing: "
+                          "JSON object, layer name -> material, environment or ignore (the "
+                          "page saves one with 'Save layer map')")
+    evaluate.add_argument("--unit", choices=("mm", "m", "cm", "in"),
+                          help="unit of a DXF drawing, overriding its $INSUNITS")
     evaluate.add_argument("--indent", type=int, default=2, help="JSON indent (0: one line)")
     evaluate.set_defaults(command=cmd_evaluate)
     hash_key = commands.add_parser("hash-key", help="print the sha256 digest of an API key "
@@ -103,7 +108,7 @@ def cmd_evaluate(args: argparse.Namespace) -> int:
     from coldseam.errors import ColdseamError, SolveFailed
 
     try:
-        data = _read_json(args.file)
+        data, notes = _read_input(args)
         result = evaluate_document(data)
     except (OSError, ValueError) as exc:
         return _fail(str(exc))
@@ -111,9 +116,37 @@ def cmd_evaluate(args: argparse.Namespace) -> int:
         return _fail(f"{exc.field}: {exc.message}" if exc.field else exc.message, 1)
     except ColdseamError as exc:
         return _fail(f"{exc.field}: {exc.message}" if exc.field else exc.message)
-    json.dump(result, sys.stdout, indent=args.indent or None, ensure_ascii=False)
-    sys.stdout.write("\n")
+    if notes:
+        result["warnings"] = [*notes, *result.get("warnings", [])]
+    return _print(json.dumps(result, indent=args.indent or None, ensure_ascii=False) + "\n")
+
+
+def _print(text: str) -> int:
+    """Write ``text`` to standard output; a reader that stops early (``| head``) ends the
+    command quietly. gmsh leaves SIGPIPE ignored, so a closed pipe is a BrokenPipeError."""
+    try:
+        sys.stdout.write(text)
+        sys.stdout.flush()
+    except BrokenPipeError:
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())  # so the flush at exit does not raise again
     return 0
+
+
+def _read_input(args: argparse.Namespace) -> tuple[object, list[str]]:
+    """The request document to evaluate and the import warnings (a DXF drawing's)."""
+    is_dxf = args.file.lower().endswith(".dxf")
+    if args.layers is None:
+        if is_dxf:
+            raise ValueError(f"{args.file}: a DXF drawing needs a layer map: --layers "
+                             "map.json (layer name -> material, environment or ignore)")
+        return _read_json(args.file), []
+    from coldseam.imports.dxf import import_dxf
+
+    data = sys.stdin.buffer.read() if args.file == "-" else Path(args.file).read_bytes()
+    layer_map = _read_json(args.layers)
+    imported = import_dxf(data, layer_map, args.unit, name=Path(args.file).name)
+    return {"section": imported["section"]}, list(imported["warnings"])
 
 
 def evaluate_document(data: object) -> dict:

@@ -33,10 +33,13 @@ def test_worker_killed_from_outside_is_replaced(client_for):
     with client_for() as client:
         evaluation_id = client.post("/api/v1/evaluations", params={"wait": "false"},
                                     json=fake("sleep=5")).json()["id"]
-        _until(lambda: client.get(f"/api/v1/evaluations/{evaluation_id}").json()["status"]
-               == "running")
         pool = client.app.state.evaluations.pool
+        # "running" is set before the worker has the job (or even a process): wait until the
+        # worker reports progress on it, so its pid is known and the kill lands mid-evaluation.
+        _until(lambda: client.get(f"/api/v1/evaluations/{evaluation_id}").json().get("stage")
+               == "solving")
         (pid,) = pool.worker_pids()
+        assert pid is not None
         os.kill(pid, signal.SIGKILL)
         _until(lambda: client.get(f"/api/v1/evaluations/{evaluation_id}").json()["status"]
                == "failed")

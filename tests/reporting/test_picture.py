@@ -6,7 +6,6 @@ from __future__ import annotations
 import doctest
 import struct
 import threading
-import time
 import xml.etree.ElementTree as ET
 
 import matplotlib
@@ -159,20 +158,13 @@ def test_rendering_in_threads_leaves_no_global_state_behind():
     assert Gcf.get_num_fig_managers() == 0  # nothing was registered with pyplot
 
 
-def test_twenty_thousand_triangles_draw_quickly():
+def test_twenty_thousand_triangles_are_drawn_as_an_image_not_as_paths():
+    # Speed is measured by the benchmark, not asserted here; what keeps a large field cheap to
+    # draw is checkable: the bands are one embedded image, not 20 000 paths.
     field = square_field(n=100, side=1.0)  # 20 000 triangles
     assert len(field["triangles"]) == 20_000
-    render_png(field, RESULT)  # warm-up: fonts and caches
-    best = min(_timed(render_png, field) for _ in range(3))
-    # target 0.5 s on an idle 2-core machine; the bound leaves room for a loaded one
-    assert best < 1.0, f"PNG of 20k triangles took {best:.2f} s"
-    assert len(render_svg(field, RESULT)) < 400_000  # bands embedded as an image, not paths
-
-
-def _timed(render, field) -> float:
-    start = time.perf_counter()
-    render(field, RESULT)
-    return time.perf_counter() - start
+    assert render_png(field, RESULT).startswith(b"\x89PNG")
+    assert len(render_svg(field, RESULT)) < 400_000
 
 
 def test_module_examples_run():

@@ -15,6 +15,10 @@ CROSS_CHECKED = {
     "window_installation": {"frame_offset"},
 }
 
+#: The climate's cross-parameter rules (θe below θi; a humidity class below saturation),
+#: shared by every template.
+CLIMATE_CROSS_CHECKED = {"outdoor_temperature", "humidity_class"}
+
 
 def parameters(template_id: str) -> st.SearchStrategy[dict]:
     """Any combination of in-range values; materials as library default or a λ."""
@@ -24,6 +28,8 @@ def parameters(template_id: str) -> st.SearchStrategy[dict]:
             fields[p.name] = st.one_of(st.just(0.0), st.floats(p.min_nonzero, p.max))
         elif p.kind == "number":
             fields[p.name] = st.floats(p.min, p.max, allow_nan=False)
+        elif p.kind == "integer":
+            fields[p.name] = st.integers(int(p.min), int(p.max))
         elif p.kind == "choice":
             fields[p.name] = st.sampled_from(p.options)
         else:
@@ -36,6 +42,6 @@ def build_or_skip(template_id: str, params: dict) -> dict:
         return build(template_id, params)
     except InvalidSection as error:
         name = error.field.removeprefix("/parameters/")
-        if name in CROSS_CHECKED.get(template_id, set()):
+        if name in CROSS_CHECKED.get(template_id, set()) | CLIMATE_CROSS_CHECKED:
             reject()
         raise

@@ -24,8 +24,8 @@ def test_declarations_are_complete_and_defaults_in_range(template_id):
     names = [p.name for p in info.parameters]
     assert len(names) == len(set(names))
     for p in info.parameters:
-        assert p.kind in {"number", "material", "choice"} and p.description
-        if p.kind == "number":
+        assert p.kind in {"number", "integer", "material", "choice"} and p.description
+        if p.kind in ("number", "integer"):
             assert p.min <= p.default <= p.max, p.name
         if p.kind == "choice":
             assert p.default in p.options and "options" in p.as_dict()

@@ -2,9 +2,29 @@
 // import endpoint expects ({material, conductivity|library, order}, {environment, temperature,
 // side, surface_resistance} or {ignore: true}).
 
-/** Surface resistances for first guesses: ISO 6946 horizontal heat flow [from memory]. */
+/**
+ * Surface resistances for first guesses: ISO 6946 horizontal heat flow [from memory]; air
+ * temperatures of the design climate. Fallbacks only: the import answer carries the server's
+ * defaults (`climate`), and a test checks that these agree with them.
+ */
 export const DEFAULT_RS = { interior: 0.13, exterior: 0.04 };
-export const DEFAULT_TEMPERATURE = { interior: 20, exterior: 0 };
+export const DEFAULT_TEMPERATURE = { interior: 20, exterior: -5 };
+
+/** Defaults by side ({temperature, rs}) from the import answer's `climate`, else the fallbacks. */
+export function sideDefaults(climate) {
+  const rs = climate?.surface_resistance || DEFAULT_RS;
+  const temperature = climate ? { interior: climate.indoor_temperature, exterior: climate.outdoor_temperature }
+    : DEFAULT_TEMPERATURE;
+  return { temperature: { ...DEFAULT_TEMPERATURE, ...temperature }, rs: { ...DEFAULT_RS, ...rs } };
+}
+
+/**
+ * The first-guess environment id of a surface layer: one per side, so that all the interior
+ * surface layers (wall, ceiling, floor) make one environment, and all the exterior ones another.
+ */
+export function environmentFor(side) {
+  return side === "interior" ? "inside" : "outside";
+}
 
 /** "material", "environment" or "ignore" from what the layer holds. */
 export function guessRole(layer) {
@@ -76,4 +96,40 @@ export function layerContent(layer) {
   if (layer.closed_shapes) parts.push(plural(layer.closed_shapes, "closed shape"));
   if (layer.open_paths) parts.push(plural(layer.open_paths, "open path"));
   return parts.join(", ") || "nothing usable";
+}
+
+/**
+ * The row choices a saved layer-map rule stands for (the inverse of ruleFor); fields the rule
+ * does not give keep the values of `base`. Null when the rule says nothing this page knows.
+ */
+export function choiceFromRule(rule, base) {
+  if (!rule || typeof rule !== "object") return null;
+  const text = (v, fallback) => (v === undefined || v === null ? fallback : String(v));
+  if (rule.ignore === true) return { ...base, role: "ignore" };
+  if (typeof rule.material === "string") {
+    return { ...base, role: "material", material: rule.material, library: text(rule.library, ""),
+      conductivity: Array.isArray(rule.conductivity) ? "" : text(rule.conductivity, ""), order: text(rule.order, "") };
+  }
+  if (typeof rule.environment === "string") {
+    const side = rule.side === "interior" || rule.side === "exterior" ? rule.side : base.side;
+    return { ...base, role: "environment", environment: rule.environment, side,
+      temperature: text(rule.temperature, base.temperature), surface_resistance: text(rule.surface_resistance, base.surface_resistance) };
+  }
+  return null;
+}
+
+/**
+ * Match a saved layer map to the drawing's layer names (case does not matter, as in CAD):
+ * `{rules: {layerName: rule}, unused: [map names the drawing lacks], missing: [layers the map
+ * does not name]}`.
+ */
+export function matchLayerMap(names, map) {
+  const byKey = new Map(Object.entries(map || {}).map(([k, v]) => [k.toLowerCase(), [k, v]]));
+  const rules = {};
+  const missing = [];
+  for (const name of names) {
+    const hit = byKey.get(String(name).toLowerCase());
+    if (hit) { rules[name] = hit[1]; byKey.delete(String(name).toLowerCase()); } else missing.push(name);
+  }
+  return { rules, unused: [...byKey.values()].map(([k]) => k), missing };
 }

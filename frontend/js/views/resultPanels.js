@@ -45,16 +45,24 @@ export function headline(result) {
   return h("div", { class: "headline" },
     tile("Linear thermal transmittance ψ", result.psi ? fixed(result.psi.value, 4) : "—", "W/(m·K)", "psi-value",
       psiNote ? h("span", { class: "tile-note" }, psiNote) : null),
-    tile("Thermal coupling coefficient L2D", result.L2D !== undefined ? fixed(result.L2D, 4) : "—", "W/(m·K)", "l2d-value",
-      unbounded && result.L2D === null ? h("span", { class: "tile-note" }, unbounded) : null),
+    tile("Thermal coupling coefficient L2D", result.L2D != null ? fixed(result.L2D, 4) : "—", "W/(m·K)", "l2d-value",
+      result.L2D != null ? null : h("span", { class: "tile-note", testid: "l2d-note" },
+        unbounded && result.L2D === null ? unbounded : l2dReason(result))),
     tile("Temperature factor fRsi", c ? fixed(c.fRsi, 3) : "—", "", "frsi-value",
       h("span", { class: "tile-note" }, verdictBadge(c), " ", c?.not_assessed ? "see the condensation card" : crit)),
     tile("Lowest interior surface temperature θsi,min", fixed(minInterior(result), 2), "°C", "theta-min"));
 }
 
+/** Why a result has no L2D: it is defined between exactly two environments. */
+function l2dReason(result) {
+  const n = Object.keys(result.heat_flows || {}).length;
+  if (n > 2) return `${n} environments: L2D is defined between two; see the coupling coefficients Lij below`;
+  return "not computed for this section";
+}
+
 function heatFlowCard(result) {
   const rows = Object.entries(result.heat_flows || {}).map(([env, q]) => [env, fixed(q, 3), "W/m"]);
-  if (result.L2D !== undefined) rows.push(["L2D", fixed(result.L2D, 5), "W/(m·K)"]);
+  if (result.L2D != null) rows.push(["L2D", fixed(result.L2D, 5), "W/(m·K)"]);
   const body = [pairs(rows)];
   const L = result.coupling_coefficients;
   if (L && typeof L === "object") body.push(couplingTable(L));

@@ -33,8 +33,11 @@ function buildForm(panel, stage, templates, materials, templateId) {
     templates.map((t) => h("option", { value: t.id }, t.title || t.id)));
   const about = h("p", { class: "template-about", testid: "template-description" });
   const paramsBox = h("div", { class: "params" });
+  const climateBox = h("div", { class: "params", testid: "climate-params" });
   const previewProblems = problemList();
-  const assess = assessPanel(() => state.request, (problems) => placeProblems(problems, state.fields));
+  // the climate (temperatures, humidity, Rsi of the fRsi run) is the template's own parameters
+  const assess = assessPanel(() => state.request, (problems) => placeProblems(problems, state.fields),
+    { climate: false });
   const refresh = debounce(() => updatePreview(state, stage, previewProblems, assess), 300);
   const choose = (id) => {
     state.template = templates.find((t) => t.id === id) || templates[0];
@@ -42,7 +45,9 @@ function buildForm(panel, stage, templates, materials, templateId) {
     history.replaceState(null, "", `#/template/${encodeURIComponent(state.template.id)}`);
     replace(about, state.template.description || "");
     state.fields = (state.template.parameters || []).map((p) => parameterField(p, materials, refresh));
-    replace(paramsBox, state.fields.map((f) => f.el));
+    const isClimate = (f) => CLIMATE.has(f.name);
+    replace(paramsBox, state.fields.filter((f) => !isClimate(f)).map((f) => f.el));
+    replace(climateBox, state.fields.filter(isClimate).map((f) => f.el));
     state.request = null;
     assess.setReady(false);
     updatePreview(state, stage, previewProblems, assess);
@@ -54,11 +59,18 @@ function buildForm(panel, stage, templates, materials, templateId) {
       about),
     h("section", { class: "card" }, h("h2", { class: "card-title" }, "Dimensions and materials"),
       paramsBox, previewProblems),
+    h("section", { class: "card" }, h("h2", { class: "card-title" }, "Climate"),
+      h("p", { class: "hint" }, "Design condition of the condensation and mould check; ψ and L2D do not depend on it."),
+      climateBox),
     assess.el);
   if (templates.length) choose(templateId && templates.some((t) => t.id === templateId) ? templateId : templates[0].id);
   else replace(stage, h("p", { class: "placeholder" }, "This server offers no templates."));
   return () => state.controller?.abort();
 }
+
+/** The design-climate parameters every template takes (GET /api/v1/templates). */
+const CLIMATE = new Set(["indoor_temperature", "outdoor_temperature", "indoor_relative_humidity",
+  "humidity_class", "condensation_surface_resistance"]);
 
 function readParams(fields) {
   const params = {};

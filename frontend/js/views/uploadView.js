@@ -4,7 +4,7 @@
 import { ApiError, importDxf, listMaterials } from "../api.js";
 import { h, replace } from "../dom.js";
 import { assessPanel } from "./assess.js";
-import { mappingTable } from "./dxfMapping.js";
+import { layerMapFiles, mappingTable } from "./dxfMapping.js";
 import { flankingEditor } from "./flanking.js";
 import { placeProblems, problemList, showProblems } from "./problems.js";
 import { sectionPreview } from "./sectionPreview.js";
@@ -18,7 +18,7 @@ export function uploadView(root) {
   const stage = h("div", { class: "stage" }, h("p", { class: "placeholder stage-empty" },
     "The section appears here once a file is read."));
   const problems = problemList();
-  const mapping = h("div", { class: "mapping" });
+  const mapping = h("div", { class: "mapping mapping-wide", testid: "mapping-area" });
   const flankBox = h("div", {});
   const assess = assessPanel(() => fullRequest(state), (p) => (state.flanking ? state.flanking.place(p) : p));
   assess.setReady(false);
@@ -34,9 +34,9 @@ export function uploadView(root) {
     testid: "upload-input", class: "file-input" });
   fileInput.addEventListener("change", () => fileInput.files[0] && readFile(fileInput.files[0], ctx));
   const zone = dropZone(fileInput, (file) => readFile(file, ctx));
-  replace(root, h("div", { class: "workspace" }, h("div", { class: "panel" },
+  replace(root, h("div", { class: "workspace" }, mapping, h("div", { class: "panel" },
     h("section", { class: "card" }, h("h2", { class: "card-title" }, "Section file"), zone, problems),
-    mapping, flankBox, assess.el), stage));
+    flankBox, assess.el), stage));
   const handed = sessionStorage.getItem(REUSE_KEY);
   if (handed) {
     sessionStorage.removeItem(REUSE_KEY);
@@ -122,7 +122,12 @@ async function inspectDxf(file, ctx) {
 }
 
 function mappingStep(file, answer, ctx) {
-  const table = mappingTable(answer.layers || [], ctx.state.materials);
+  const table = mappingTable(answer.layers || [], ctx.state.materials, answer.climate || null);
+  const notes = h("ul", { class: "warning-list warnings-inline", testid: "layer-map-notes", hidden: true });
+  const showNotes = (lines) => {
+    notes.hidden = !lines.length;
+    replace(notes, lines.map((line) => h("li", {}, line)));
+  };
   const unit = h("select", { id: "dxf-unit", testid: "dxf-unit" },
     h("option", { value: "" }, "— choose —"), h("option", { value: "mm" }, "millimetres (mm)"),
     h("option", { value: "m" }, "metres (m)"));
@@ -133,7 +138,8 @@ function mappingStep(file, answer, ctx) {
   const button = h("button", { type: "button", class: "secondary", testid: "build-section" }, "Build section");
   button.addEventListener("click", () => buildSection(file, table, unit, unitError, list, ctx));
   replace(ctx.mapping, h("section", { class: "card" }, h("h2", { class: "card-title" }, "Layers"),
-    h("p", { class: "hint" }, `Say what each layer of ${file.name} stands for.`),
+    h("p", { class: "hint" }, `Say what each layer of ${file.name} stands for. Surface layers with the same environment id make one environment.`),
+    layerMapFiles(table, file.name, showNotes), notes,
     h("div", { class: "field" }, h("label", { for: "dxf-unit" },
       answer.unit ? `Drawing unit (the file says ${answer.unit})` : "Drawing unit (the file does not say)"), unit, unitError),
     warningList(answer.warnings, "inspect-warnings"), table.el, h("div", { class: "actions" }, button), list));

@@ -45,7 +45,12 @@ QUANTITIES = {
     "min_temperature": ("condensation", "min_temperature"),
     "U": ("U",),
 }
-RESERVED = {"quantity", "format", "key"}
+RESERVED = {"quantity", "format", "key", "errors"}
+ERRORS_PARAMETER = ("'status' (default): errors answer 4xx/5xx with an 'error: ...' line. "
+                    "'inline': errors answer 200 with the same line (the real status in the "
+                    "X-Coldseam-Status header), for spreadsheet functions that show only a "
+                    "generic cell error for any other status. A missing or refused API key "
+                    "keeps its 401.")
 KEY_PARAMETER = ("An API key, for callers that cannot send an Authorization header (spreadsheet "
                  "web-service functions); accepted on this endpoint only. URLs end up in proxy "
                  "and server logs, browser histories and the spreadsheet file: prefer the "
@@ -103,16 +108,19 @@ async def template_evaluation(template_id: TemplateId, request: Request,
 @router.get("/templates/{template_id}/value", response_class=PlainTextResponse,
             responses={200: {"content": {"text/plain": {"example": "0.0613"},
                                          "text/csv": {"example": "insulation_thickness,psi\n"
-                                                                 "160,0.0796661\n"}}}})
+                                                                 "160,0.0795454\n"}}}})
 async def template_value(template_id: TemplateId, request: Request,
                          evaluations: EvaluationsDep, settings: SettingsDep, owner: OwnerDep,
                          quantity: Annotated[str, Query(examples=["psi"])] = "psi",
                          format: Annotated[Literal["text", "csv"], Query()] = "text",
                          key: Annotated[str | None, Query(description=KEY_PARAMETER)] = None,
+                         errors: Annotated[Literal["status", "inline"],
+                                           Query(description=ERRORS_PARAMETER)] = "status",
                          ) -> PlainTextResponse:
     """One figure of a template evaluation as plain text; other query parameters are the
-    template's (e.g. ``?quantity=psi&insulation_thickness=160``). On a server with API keys,
-    ``key`` may stand in for the Authorization header (see its caveat)."""
+    template's (e.g. ``?quantity=psi&insulation_thickness=160``; a decimal comma is read as
+    a decimal point: ``160,5``). On a server with API keys, ``key`` may stand in for the
+    Authorization header (see its caveat); ``errors=inline`` answers errors 200."""
     wanted = [q.strip() for q in quantity.split(",") if q.strip()]
     unknown = [q for q in wanted if q not in QUANTITIES]
     if not wanted or unknown:
@@ -128,9 +136,11 @@ async def template_value(template_id: TemplateId, request: Request,
     values = [pick(result, q) for q in wanted]
     if format == "csv":
         header = ",".join([*given, *wanted])
-        line = ",".join([*given.values(), *map(number, values)])
+        echoed = [number(v) if isinstance(v, float) else v for v in parameters.values()]
+        line = ",".join([*echoed, *map(number, values)])
         return PlainTextResponse(f"{header}\n{line}\n", media_type="text/csv")
-    return PlainTextResponse(number(values[0]) + "\n")
+    # no line break after the number: LibreOffice's VALUE() refuses "0.0795\n" (Err:502)
+    return PlainTextResponse(number(values[0]))
 
 
 template_value.query_key = True  # type: ignore[attr-defined]  # see deps.takes_query_key
@@ -223,8 +233,13 @@ def number(value: float) -> str:
 
 
 def query_value(text: str) -> float | str:
+    """A query parameter as a number where it reads as one (a decimal comma, as spreadsheets
+    in many locales write it, counts as a decimal point: ``160,5`` is 160.5), else the text."""
+    candidate = text.strip()
+    if candidate.count(",") == 1 and "." not in candidate:
+        candidate = candidate.replace(",", ".")
     try:
-        return float(text)
+        return float(candidate)
     except ValueError:
         return text
 

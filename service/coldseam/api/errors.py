@@ -81,10 +81,25 @@ def plain_text_wanted(request: Request) -> bool:
     return path.startswith("/api/v1/templates/") and path.endswith("/value")
 
 
+#: Statuses ``errors=inline`` keeps: a request without an accepted key is never answered 200.
+NOT_INLINED = {401, 403}
+
+
+def errors_inline(request: Request, status: int) -> bool:
+    """``?errors=inline`` on the value endpoint: errors answer 200 with the ``error:`` line
+    (and the real status in ``X-Coldseam-Status``), for spreadsheet functions that show only
+    a generic cell error for any status but 200; access refusals keep their 401."""
+    return (plain_text_wanted(request) and request.query_params.get("errors") == "inline"
+            and status not in NOT_INLINED)
+
+
 def respond(request: Request, body: dict[str, Any], status: int,
             headers: dict[str, str] | None = None) -> Response:
     if plain_text_wanted(request):
-        return PlainTextResponse(f"error: {body['detail']}\n", status_code=status,
+        if errors_inline(request, status):
+            headers = {**(headers or {}), "X-Coldseam-Status": str(status)}
+            status = 200
+        return PlainTextResponse(f"error: {body['detail']}", status_code=status,
                                  headers=headers)
     return JSONResponse(body, status_code=status, headers=headers)
 

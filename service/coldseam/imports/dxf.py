@@ -38,6 +38,7 @@ from ezdxf.filemanagement import dxf_stream_info
 from ezdxf.lldxf.const import DXFError
 from ezdxf.lldxf.tagger import binary_tags_loader
 
+from coldseam import climate
 from coldseam.errors import InvalidSection
 from coldseam.imports.dxf_entities import DxfLimits, Shape, _Budget, iter_layer_entities, shapes_of
 from coldseam.imports.dxf_layers import EnvironmentLayer, IgnoreLayer, parse_layer_map
@@ -92,7 +93,7 @@ def import_dxf(data: bytes, layer_map: dict | None = None, unit: str | None = No
                for layer in counts]
     if rules is None:
         return {"layers": summary, "unit": ruler.unit if drawing_unit else None,
-                "needs_mapping": True, "warnings": notes}
+                "needs_mapping": True, "warnings": notes, "climate": climate.defaults()}
     mapped = {k: g for k, g in geometry.items() if _role(k, rules) in ("material", "environment")}
     section, warnings = build_section(mapped, rules, ruler, 6 if ruler.unit == "mm" else 9)
     if name:

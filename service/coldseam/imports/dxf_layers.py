@@ -2,8 +2,9 @@
 
 A layer is a material (``{"material": id, "conductivity": λ or [λx, λy]}`` or
 ``{"material": id, "library": libid}``, optional ``"order"``: higher is drawn on top), an
-environment (``{"environment": id, "temperature": θ, "side": "interior"|"exterior",
-"surface_resistance": R}``) or ignored (``{"ignore": true}``). Layer names match without
+environment (``{"environment": id, "side": "interior"|"exterior", "temperature": θ,
+"surface_resistance": R}``; temperature and R default by side to the design climate of
+``coldseam.climate``) or ignored (``{"ignore": true}``). Layer names match without
 regard to case, as in CAD.
 """
 
@@ -13,6 +14,7 @@ from typing import Any, Literal
 
 from pydantic import BaseModel, ConfigDict, Field, ValidationError
 
+from coldseam import climate
 from coldseam.errors import InvalidSection
 from coldseam.schema.evaluation import invalid_from_pydantic
 from coldseam.schema.section import Environment, Material
@@ -32,10 +34,24 @@ class MaterialLayer(_Rule):
 
 class EnvironmentLayer(_Rule):
     environment: str = Field(min_length=1, max_length=80)
-    temperature: float
     side: Literal["interior", "exterior"]
-    surface_resistance: float = Field(ge=0, le=10)
+    temperature: float | None = Field(default=None, description="Air temperature in °C; "
+                                      "default by side, from coldseam.climate (20 / −5 °C).")
+    surface_resistance: float | None = Field(default=None, ge=0, le=10, description="m²·K/W; "
+                                             "default by side: 0.13 interior, 0.04 exterior.")
     condensation_surface_resistance: float | None = Field(default=None, ge=0, le=10)
+
+    @property
+    def air_temperature(self) -> float:
+        """The temperature given, or the design climate's for this side."""
+        return climate.temperature_for(self.side) if self.temperature is None else self.temperature
+
+    @property
+    def resistance(self) -> float:
+        """The surface resistance given, or the default for this side."""
+        if self.surface_resistance is None:
+            return climate.surface_resistance_for(self.side)
+        return self.surface_resistance
 
 
 class IgnoreLayer(_Rule):
@@ -81,7 +97,7 @@ def _parse_rule(name: str, raw: Any) -> LayerRule:
         if isinstance(rule, MaterialLayer):
             Material(id=rule.material, conductivity=rule.conductivity, library=rule.library)
         if isinstance(rule, EnvironmentLayer):
-            Environment(id=rule.environment, temperature=rule.temperature, side=rule.side)
+            Environment(id=rule.environment, temperature=rule.air_temperature, side=rule.side)
     except ValidationError as exc:
         error = invalid_from_pydantic(exc)
         raise InvalidSection(f"layer {name}: {error.message}", pointer + error.field) from None
@@ -117,7 +133,7 @@ def _check_environments(rules: dict[str, tuple[str, LayerRule]]) -> None:
         if not isinstance(rule, EnvironmentLayer):
             continue
         first = seen.setdefault(rule.environment, (name, rule))
-        if (first[1].temperature, first[1].side) != (rule.temperature, rule.side):
+        if (first[1].air_temperature, first[1].side) != (rule.air_temperature, rule.side):
             raise InvalidSection(
                 f"layers {first[0]} and {name} both stand for environment "
                 f"'{rule.environment}' but give it a different temperature or side "
@@ -146,6 +162,6 @@ def environments_of(rules: dict[str, tuple[str, LayerRule]], used: set[str]) -> 
     for _, rule in rules.values():
         if isinstance(rule, EnvironmentLayer) and rule.environment in used:
             out.setdefault(rule.environment, {"id": rule.environment,
-                                              "temperature": rule.temperature,
+                                              "temperature": rule.air_temperature,
                                               "side": rule.side})
     return list(out.values())

@@ -81,7 +81,7 @@ def _boundaries(layer: str, geo: LayerGeometry, rule: EnvironmentLayer, ruler: R
     out = []
     for points in paths:
         entry: dict[str, Any] = {"environment": rule.environment,
-                                 "surface_resistance": rule.surface_resistance,
+                                 "surface_resistance": rule.resistance,
                                  "path": _coords(points, ruler, digits)}
         if rule.condensation_surface_resistance is not None:
             entry["condensation_surface_resistance"] = rule.condensation_surface_resistance

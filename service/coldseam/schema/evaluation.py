@@ -7,6 +7,7 @@ from typing import Any, Literal
 
 from pydantic import Field, ValidationError, field_validator, model_validator
 
+from coldseam import climate
 from coldseam.errors import InvalidSection
 from coldseam.schema.section import (
     MAX_COORDINATE,
@@ -91,7 +92,7 @@ class OutdoorClimate(_Strict):
 
 
 class CondensationRequest(_Strict):
-    interior_surface_resistance: float = Field(default=0.25, ge=0, le=10)
+    interior_surface_resistance: float = Field(default=climate.CONDENSATION_RSI, ge=0, le=10)
     indoor: IndoorClimate = Field(default_factory=IndoorClimate)
     outdoor: OutdoorClimate = Field(default_factory=OutdoorClimate)
     criterion: float | None = Field(

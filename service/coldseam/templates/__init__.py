@@ -12,6 +12,7 @@ in ``_MODULES`` below.
 
 from __future__ import annotations
 
+import dataclasses
 import difflib
 import logging
 from types import ModuleType
@@ -30,6 +31,7 @@ from coldseam.templates import (
     window_reveal,
 )
 from coldseam.templates.base import Parameter, TemplateInfo, resolve_parameters
+from coldseam.templates.climate import CLIMATE_PARAMETERS, apply_climate
 
 logger = logging.getLogger(__name__)
 
@@ -38,16 +40,20 @@ __all__ = ["Parameter", "TemplateInfo", "build", "get_template", "list_templates
 _MODULES: tuple[ModuleType, ...] = (corner, floor_slab, balcony, window_reveal, eaves,
                                     ground_floor, framed_wall, window_installation, glazing_edge)
 _BY_ID: dict[str, ModuleType] = {m.INFO.id: m for m in _MODULES}
+#: Each template's declaration with the design-climate parameters every template takes.
+_INFO: dict[str, TemplateInfo] = {
+    m.INFO.id: dataclasses.replace(m.INFO, parameters=(*m.INFO.parameters, *CLIMATE_PARAMETERS))
+    for m in _MODULES}
 
 
 def list_templates() -> list[TemplateInfo]:
-    """Every template with its parameters, in a stable order."""
-    return [m.INFO for m in _MODULES]
+    """Every template with its parameters (its own, then the climate's), in a stable order."""
+    return [_INFO[m.INFO.id] for m in _MODULES]
 
 
 def get_template(template_id: str) -> TemplateInfo:
     """The template ``template_id``; InvalidSection at ``/template`` when there is none."""
-    return _module(template_id).INFO
+    return _INFO[_module(template_id).INFO.id]
 
 
 def build(template_id: str, params: dict[str, Any] | None = None) -> dict[str, Any]:
@@ -57,9 +63,9 @@ def build(template_id: str, params: dict[str, Any] | None = None) -> dict[str, A
     ``/parameters/<name>``.
     """
     module = _module(template_id)
-    resolved = resolve_parameters(module.INFO, params)
+    resolved = resolve_parameters(_INFO[module.INFO.id], params)
     logger.debug("building template %s", template_id)
-    return module.build(resolved)
+    return apply_climate(module.build(resolved), resolved)
 
 
 def _module(template_id: str) -> ModuleType:

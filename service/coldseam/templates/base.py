@@ -10,6 +10,7 @@ import math
 from dataclasses import dataclass, field
 from typing import Any, Literal
 
+from coldseam import climate
 from coldseam.errors import InvalidSection
 from coldseam.materials import lookup
 
@@ -19,18 +20,21 @@ RSI_UPWARD = 0.10
 RSI_DOWNWARD = 0.17
 RSE = 0.04
 #: ISO 13788 interior surface resistance for the fRsi run: opaque parts, glazing and frames.
-RSI_CONDENSATION = 0.25
-RSI_CONDENSATION_FRAME = 0.13
+RSI_CONDENSATION = climate.CONDENSATION_RSI
+RSI_CONDENSATION_FRAME = climate.CONDENSATION_RSI_FRAME
 
-#: Design climate of every template (θi, θe) in °C; L2D and ψ do not depend on it.
-INSIDE_TEMPERATURE = 20.0
-OUTSIDE_TEMPERATURE = -5.0
-INDOOR_RELATIVE_HUMIDITY = 0.5
+#: Default design climate of every template (θi, θe) in °C (``coldseam.climate``); the
+#: climate parameters below override it. L2D and ψ do not depend on it.
+INSIDE_TEMPERATURE = climate.INDOOR_TEMPERATURE
+OUTSIDE_TEMPERATURE = climate.OUTDOOR_TEMPERATURE
+INDOOR_RELATIVE_HUMIDITY = climate.INDOOR_RELATIVE_HUMIDITY
+#: The least difference θi − θe a template accepts, K.
+LEAST_TEMPERATURE_DIFFERENCE = 1.0
 
 #: A flanking element's U is read along a cut this far (mm) inside its cut-off plane.
 CUT_INSET = 50.0
 
-Kind = Literal["number", "material", "choice"]
+Kind = Literal["number", "integer", "material", "choice"]
 
 
 @dataclass(frozen=True)
@@ -160,6 +164,8 @@ def _check(p: Parameter, value: Any) -> Any:
         row = lookup(value, f"/parameters/{p.name}")
         return MaterialChoice(row.conductivity, row.id, row.name)
     number = _number(p, value)
+    if p.kind == "integer" and not number.is_integer():
+        raise invalid(p.name, f"{p.name} must be a whole number; got {number:g}")
     return MaterialChoice(number) if p.kind == "material" else number
 
 
@@ -242,3 +248,4 @@ def _dedupe(points: list[list[float]]) -> list[list[float]]:
         if p != out[-1]:
             out.append(p)
     return out
+

@@ -20,7 +20,7 @@ from coldseam import CAUTION, ENGINE_VERSION
 from coldseam.errors import LimitExceeded
 from coldseam.meshing.estimate import check_coarsest
 from coldseam.schema.evaluation import EvaluationRequest
-from coldseam.thermal import results, singular
+from coldseam.thermal import results, singular, units
 from coldseam.thermal.field import field_arrays, plain
 from coldseam.thermal.levels import (
     ISO_RULE,
@@ -141,6 +141,7 @@ def _result(model, flanking, pair, levels, solution: LevelSolution, warnings) ->
         out["sensitivities"] = results.sensitivities(model, solution, flanking, pair)
     warnings = warnings + results.energy_warnings(model, solution)
     warnings += results.cutoff_warnings(model, solution)
+    warnings = units.plausibility_warnings(model.section) + warnings
     out["materials"] = results.materials_block(model)
     out["cavities"] = [{k: v for k, v in c.items() if k != "material_index" and k[0] != "_"}
                        for c in model.cavities]
@@ -148,7 +149,7 @@ def _result(model, flanking, pair, levels, solution: LevelSolution, warnings) ->
     out["caution"] = CAUTION
     out["engine_version"] = ENGINE_VERSION
     out["name"] = model.section.name
-    return _jsonable(out)
+    return units.add_section_coordinates(_jsonable(out), model.section)
 
 
 def _without_meaningless(out: dict, meaning: singular.Meaning, levels, model) -> dict:

@@ -16,6 +16,7 @@ import logging
 import numpy as np
 from numpy.typing import ArrayLike
 
+from coldseam import climate
 from coldseam.errors import InvalidSection
 from coldseam.schema.evaluation import CondensationRequest
 
@@ -34,7 +35,7 @@ SAFETY_FACTOR = 1.10
 
 MOULD_LIMIT = 0.8
 CONDENSATION_LIMIT = 1.0
-DEFAULT_INDOOR_RH = 0.5
+DEFAULT_INDOOR_RH = climate.INDOOR_RELATIVE_HUMIDITY
 
 
 def saturation_pressure(theta: ArrayLike) -> np.ndarray:
@@ -181,5 +182,6 @@ def _indoor_humidity(request: CondensationRequest, theta_i: float, theta_e: floa
     rh_i = indoor.relative_humidity
     if rh_i is None:
         rh_i = DEFAULT_INDOOR_RH
-        assumptions.append("indoor relative humidity not given: 50 % assumed (common practice)")
+        assumptions.append(f"indoor relative humidity not given: {DEFAULT_INDOOR_RH * 100:g} "
+                           "% assumed (common practice)")
     return rh_i * p_sat_i, float(rh_i)
