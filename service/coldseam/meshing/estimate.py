@@ -31,9 +31,18 @@ MANY_NODES = 64
 MAX_TRIANGULATED = 4000
 
 
+def planned_nodes(classified: Classified) -> int:
+    """The estimated nodes of the mesh of the size plan at factor 1 (kept on ``classified``)."""
+    cached = vars(classified).get("_planned_nodes")
+    if cached is None:
+        cached = vars(classified)["_planned_nodes"] = estimate_nodes(classified,
+                                                                     plan(classified, 1.0))
+    return cached
+
+
 def check_coarsest(classified: Classified, max_nodes: int) -> int:
     """The estimated nodes of the coarsest mesh; LimitExceeded when over ``max_nodes``."""
-    estimated = estimate_nodes(classified, plan(classified, 1.0))
+    estimated = planned_nodes(classified)
     if estimated > max_nodes:
         raise LimitExceeded(
             f"even the coarsest mesh of this section would need about {estimated} nodes "

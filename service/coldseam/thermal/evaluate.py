@@ -21,7 +21,7 @@ from coldseam.errors import LimitExceeded
 from coldseam.meshing.estimate import check_coarsest
 from coldseam.schema.evaluation import EvaluationRequest
 from coldseam.thermal import dynamics_result, results, singular, units
-from coldseam.thermal.field import field_document
+from coldseam.thermal.field import field_arrays, plain
 from coldseam.thermal.levels import (
     ISO_RULE,
     TARGETS,
@@ -44,7 +44,16 @@ Progress = Callable[[str, float], None]
 @dataclass
 class Evaluation:
     result: dict
-    field: dict
+    arrays: dict  # the field, its large members as numpy arrays (coldseam.thermal.field)
+
+    @property
+    def field(self) -> dict:
+        """The field document with plain lists, made on first use."""
+        if self._field is None:
+            self._field = plain(self.arrays)
+        return self._field
+
+    _field = None
 
 
 def evaluate(request: EvaluationRequest, progress: Progress | None = None) -> Evaluation:
@@ -64,7 +73,7 @@ def evaluate(request: EvaluationRequest, progress: Progress | None = None) -> Ev
     if meaning.singular or meaning.frsi:
         result = _jsonable(_without_meaningless(result, meaning, levels, model))
     _release_solvers(solution)  # the field needs temperatures only: free the factorisations
-    field = field_document(model, solution)
+    field = field_arrays(model, solution)
     report("post-processing", 1.0)
     return Evaluation(result, field)
 
@@ -77,7 +86,7 @@ def _certify(model: ThermalModel, flanking: list[FlankingU], pair, report: Progr
     warnings: list[str] = []
     solution: LevelSolution | None = None
     watch = dynamics_result.Watch.start(model)  # None without a dynamics block
-    mesh, probes = first_level(model.classified)
+    mesh, probes = first_level(model.classified, options.accuracy)
     for k in range(options.max_levels):
         if mesh.nodes > options.max_nodes:
             if solution is None:
