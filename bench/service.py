@@ -29,9 +29,9 @@ def _free_port() -> int:
         return s.getsockname()[1]
 
 
-def _start(data_dir: str, workers: int):
+def _start(data_dir: str, workers: int, extra_env: dict | None = None):
     port = _free_port()
-    env = {**os.environ, "COLDSEAM_LOG_LEVEL": "WARNING"}
+    env = {**os.environ, "COLDSEAM_LOG_LEVEL": "WARNING", **(extra_env or {})}
     process = subprocess.Popen(
         [sys.executable, "-m", "coldseam.cli", "serve", "--host", "127.0.0.1", "--port",
          str(port), "--data-dir", data_dir, "--workers", str(workers)],

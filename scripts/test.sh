@@ -16,11 +16,11 @@ if ! ls /usr/lib/postgresql/*/bin/initdb >/dev/null 2>&1 && ! command -v initdb 
   fi
 fi
 
-# Optional: CHOLMOD for the direct solver (the engine falls back to SuperLU without it).
+# Optional: CHOLMOD for the direct solver (without it the engine uses QDLDL, a regular dependency).
 if [ "$(id -u)" = "0" ] && ! python3 -c "import sksparse" 2>/dev/null; then
   { apt-get update -qq && DEBIAN_FRONTEND=noninteractive apt-get install -y -qq libsuitesparse-dev \
       >/dev/null && python3 -m pip install --quiet --disable-pip-version-check \
-      'scikit-sparse>=0.4.12,<0.5'; } || echo "scikit-sparse not installed: SuperLU is used" >&2
+      'scikit-sparse>=0.4.12,<0.5'; } || echo "scikit-sparse not installed: QDLDL (the plain-install direct solver) is used" >&2
 fi
 # CHOLMOD's supernodal factorisation runs in the system BLAS: with Debian's reference BLAS it is
 # 2-3x slower at 1e6 unknowns than with OpenBLAS (the serial build: no threads that spin beside

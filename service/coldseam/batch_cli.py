@@ -10,7 +10,6 @@ finished item otherwise. The table of results, in schedule order, and Σ ψ·l g
 from __future__ import annotations
 
 import argparse
-import json
 import logging
 import sys
 import tempfile
@@ -73,11 +72,15 @@ def load_document(path: Path) -> dict[str, Any]:
     text = path.read_text(encoding="utf-8")
     if path.suffix.lower() == ".csv":
         return parse_schedule(text, name=path.stem)
+    from coldseam.errors import InvalidSection
+    from coldseam.schema.jsonlimits import load_json
+
     try:
-        data = json.loads(text)
-    except json.JSONDecodeError as exc:
-        raise ValueError(f"{path}: not valid JSON: {exc.msg} at line {exc.lineno} column "
-                         f"{exc.colno} (a CSV schedule must end in .csv)") from None
+        data = load_json(text, what=str(path))
+    except InvalidSection as exc:
+        if "not valid JSON" not in exc.message:
+            raise
+        raise ValueError(f"{exc.message} (a CSV schedule must end in .csv)") from None
     if isinstance(data, dict):
         data.setdefault("name", path.stem)
     return data

@@ -68,11 +68,31 @@ def cmd_serve(args: argparse.Namespace) -> int:
         settings = Settings(**overrides)
     except ValidationError as exc:
         return _fail(f"bad setting: {exc.errors()[0]['loc'][0]}: {exc.errors()[0]['msg']}")
-    problem = _exposure_problem(settings)
+    problem = _exposure_problem(settings) or _keys_problem(settings) or _data_problem(settings)
     if problem:
         return _fail(problem)
     _serve(settings)
     return 0
+
+
+def _keys_problem(settings: Settings) -> str | None:
+    from coldseam.api.auth import load_keys
+
+    try:
+        load_keys(settings)
+    except ValueError as exc:  # NoKeysLoaded, or a line of the file that is no digest
+        return f"refusing to start: {exc}"
+    return None
+
+
+def _data_problem(settings: Settings) -> str | None:
+    from coldseam.api.store import StoreUnavailable, check_writable
+
+    try:
+        check_writable(settings.data_dir)
+    except StoreUnavailable as exc:
+        return f"refusing to start: {exc.message}"
+    return None
 
 
 def _exposure_problem(settings: Settings) -> str | None:
@@ -95,12 +115,15 @@ def _serve(settings: Settings) -> None:
     import uvicorn
 
     from coldseam.api.main import create_app
+    from coldseam.api.protocol import protocol_with
 
     logging.basicConfig(level=settings.log_level.upper(), stream=sys.stderr,
                         format="%(asctime)s %(levelname)s %(name)s %(message)s")
     app = create_app(settings)
     uvicorn.run(app, host=settings.host, port=settings.port, access_log=False,
-                log_level=settings.log_level.lower())
+                log_level=settings.log_level.lower(),
+                http=protocol_with(settings.header_timeout),
+                timeout_keep_alive=min(5, int(settings.header_timeout)) or 1)
 
 
 def cmd_evaluate(args: argparse.Namespace) -> int:
@@ -164,12 +187,11 @@ def evaluate_document(data: object) -> dict:
 
 
 def _read_json(name: str) -> object:
-    text = sys.stdin.read() if name == "-" else Path(name).read_text(encoding="utf-8")
-    try:
-        return json.loads(text)
-    except json.JSONDecodeError as exc:
-        raise ValueError(f"{name}: not valid JSON: {exc.msg} at line {exc.lineno} column "
-                         f"{exc.colno}") from None
+    """The JSON of a file (or standard input), read under the limits the server applies."""
+    from coldseam.schema.jsonlimits import load_json
+
+    data = sys.stdin.buffer.read() if name == "-" else Path(name).read_bytes()
+    return load_json(data, what=name if name != "-" else "standard input")
 
 
 def cmd_hash_key(args: argparse.Namespace) -> int:

@@ -33,3 +33,16 @@ class LimitExceeded(ColdseamError):
 
 class SolveFailed(ColdseamError):
     """The linear solve did not converge (HTTP 500-class: an engine fault, logged)."""
+
+
+class StoreFailure(ColdseamError):
+    """The result store cannot take a write (base of StoreFull and StoreUnavailable); raised
+    by every store (SQLite, PostgreSQL) so that the API answers the same."""
+
+
+class StoreFull(StoreFailure):
+    """The disk (or database) holding results is full (HTTP 507)."""
+
+
+class StoreUnavailable(StoreFailure):
+    """The result store cannot be written at all: read-only, I/O error, gone (HTTP 503)."""

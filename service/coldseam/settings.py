@@ -58,6 +58,11 @@ class Settings(BaseSettings):
                                  "restarts and distinct between servers.")
 
     max_body_bytes: int = Field(default=10_000_000, ge=1_000)
+    body_timeout: float = Field(default=30.0, gt=0, description="Longest the body of one "
+                                "request may take to arrive; slower ones get 408.")
+    header_timeout: float = Field(default=10.0, gt=0, description="Longest a connection may "
+                                  "take to send the headers of a request (or stay idle "
+                                  "between requests) before it is closed.")
     max_vertices: int = Field(default=50_000, ge=10,
                               description="Polygon, hole and path vertices of one section.")
     max_regions: int = Field(default=2_000, ge=1)

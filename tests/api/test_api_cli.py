@@ -88,3 +88,24 @@ def test_serve_refuses_an_open_server_off_loopback():
     done = _run("serve", "--host", "0.0.0.0", "--port", "1")
     assert done.returncode == 2
     assert "refusing to serve without API keys" in done.stderr
+
+
+def test_evaluate_runs_the_dynamic_example():
+    example = REPO / "examples" / "dynamics-slab-edge.json"
+    done = _run("evaluate", str(example))
+    assert done.returncode == 0, done.stderr
+    dynamics = json.loads(done.stdout)["dynamics"]
+    series = json.loads(example.read_text())["dynamics"]["transient"]["temperatures"]["outside"]
+    assert len(dynamics["transient"]["times_hours"]) == len(series)
+    assert set(dynamics["periodic"]["coupling"]) == {"inside|outside"}
+    assert len(dynamics["time_constants_hours"]) == 3
+
+
+def test_a_dynamic_request_without_density_exits_2_naming_the_material(tmp_path):
+    request = json.loads(WALL.read_text())
+    request["dynamics"] = {"time_constants": {}}
+    path = tmp_path / "wall-dynamic.json"
+    path.write_text(json.dumps(request))
+    done = _run("evaluate", str(path))
+    assert done.returncode == 2
+    assert "/section/materials/0/density" in done.stderr and "'mineral_wool'" in done.stderr

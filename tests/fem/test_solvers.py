@@ -31,15 +31,49 @@ def test_every_solver_meets_the_residual():
     cholmod = solvers._cholmod()
     if cholmod is not None:
         candidates.append(solvers.CholeskySolver(matrix, cholmod))
+    qdldl = solvers._qdldl()
+    if qdldl is not None:
+        candidates.append(solvers.LdlSolver(matrix, qdldl))
     for solver in candidates:
         x = solver.solve(rhs)
         residual = np.linalg.norm(rhs - matrix @ x, axis=0) / np.linalg.norm(rhs, axis=0)
         assert residual.max() < 1e-8, type(solver).__name__
 
 
-def test_without_cholmod_the_lu_solver_is_used(monkeypatch):
+def test_without_cholmod_or_qdldl_the_lu_solver_is_used(monkeypatch):
     monkeypatch.setattr(solvers, "_cholmod", lambda: None)
+    monkeypatch.setattr(solvers, "_qdldl", lambda: None)
     assert isinstance(solvers.factorize(conduction_like(10)), solvers.DirectSolver)
+
+
+def test_the_plain_install_factorises_by_ldl_and_agrees_with_lu(monkeypatch):
+    """COLDSEAM_CHOLMOD=0 takes the path of a plain pip install (QDLDL, a regular dependency)."""
+    monkeypatch.setenv("COLDSEAM_CHOLMOD", "0")
+    matrix = conduction_like(20)
+    solver = solvers.factorize(matrix)
+    assert isinstance(solver, solvers.LdlSolver)
+    rhs = np.random.default_rng(3).normal(size=(matrix.shape[0], 3))
+    expected = solvers.DirectSolver(matrix).solve(rhs)
+    assert np.abs(solver.solve(rhs) - expected).max() < 1e-10 * np.abs(expected).max()
+    assert np.abs(solver.solve(rhs[:, 1]) - expected[:, 1]).max() < 1e-10 * np.abs(
+        expected).max()
+
+
+def test_the_upper_triangle_is_scipys():
+    matrix = conduction_like(12)
+    upper = solvers.upper_triangle(matrix)
+    expected = sp.triu(matrix, format="csc")
+    assert upper.has_sorted_indices
+    assert abs(upper - expected).max() == 0 and upper.nnz >= expected.nnz
+
+
+def test_a_singular_matrix_falls_back_from_ldl_to_lu(monkeypatch):
+    monkeypatch.setenv("COLDSEAM_CHOLMOD", "0")
+    singular = sp.csc_matrix(np.array([[1.0, -1.0], [-1.0, 1.0]]))
+    judged = []
+    monkeypatch.setattr(solvers, "DirectSolver", lambda matrix: judged.append(matrix) or "LU")
+    assert solvers.factorize(singular) == "LU"
+    assert len(judged) == 1
 
 
 def test_an_unconverged_iterative_solve_is_an_error(monkeypatch):

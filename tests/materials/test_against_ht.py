@@ -58,6 +58,17 @@ def test_matches_en_12524_table_in_ht(material_id, ht_key):
     assert load_library()[material_id].conductivity == pytest.approx(conductivity, rel=1e-9)
 
 
+@pytest.mark.parametrize("material_id, ht_key", sorted({**EN_12524_IN_HT, **COPIED_FROM_HT}.items()))
+def test_density_and_specific_heat_match_en_12524_table_in_ht(material_id, ht_key):
+    # Source: EN 12524:2000 design values (ρ kg/m³, c J/(kg·K)), as tabulated in
+    # ht.insulation.building_materials; the library took them from there, so this guards
+    # the transcription and says the two agree.
+    density, _conductivity, heat_capacity = ht_insulation.building_materials[ht_key]
+    row = load_library()[material_id]
+    assert (row.density, row.specific_heat) == (density, heat_capacity)
+    assert row.capacity_source.startswith("EN 12524:2000 table as tabulated in the ht library")
+
+
 def test_every_en_12524_row_of_the_library_is_cross_checked():
     en_rows = {m.id for m in load_library().values()
                if m.source == "EN 12524:2000 / ISO 10456:2007 table"}

@@ -21,7 +21,9 @@ export function downloadsCard(result) {
     h("li", {}, blobLink("Key figures (CSV)", `${stem}.csv`, "text/csv",
       toCsv(keyFigureRows(result)), "download-csv")),
     h("li", {}, link("Picture (SVG)", "picture.svg", "download-svg", { download: `${stem}.svg` })),
-    h("li", {}, link("Picture (PNG)", "picture.png", "download-png", { download: `${stem}.png` }))),
+    h("li", {}, link("Picture (PNG)", "picture.png", "download-png", { download: `${stem}.png` })),
+    result.dynamics && result.dynamics.transient ?
+      h("li", {}, link("Transient run (SVG)", "transient.svg", "download-transient", { download: `${stem}-transient.svg` })) : null),
   reportForm(result));
 }
 

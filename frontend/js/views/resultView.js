@@ -5,6 +5,7 @@ import { ApiError, getEvaluation, getField } from "../api.js";
 import { h, replace } from "../dom.js";
 import { percent } from "../lib/format.js";
 import { downloadsCard } from "./downloads.js";
+import { dynamicsCard } from "./dynamicsView.js";
 import { fieldFigure } from "./fieldView.js";
 import { problemList, showProblems } from "./problems.js";
 import { figureCards, headline, warningsCard } from "./resultPanels.js";
@@ -70,7 +71,7 @@ async function showDone(root, result, signal) {
   replace(root, h("article", { class: "results", testid: "results" },
     resultHeader(result), headline(result),
     h("div", { class: "result-grid" },
-      h("div", { class: "result-main" }, fieldHolder, warningsCard(result), downloadsCard(result)),
+      h("div", { class: "result-main" }, fieldHolder, dynamicsCard(result), warningsCard(result), downloadsCard(result)),
       h("div", { class: "result-side" }, figureCards(result))),
     h("p", { class: "caution", testid: "caution", role: "note" }, result.caution || "")));
   try {

@@ -43,11 +43,32 @@ class KeyRing:
         return hashlib.sha256(f"coldseam-owner\n{digest}".encode()).hexdigest()[:32]
 
 
+class NoKeysLoaded(ValueError):
+    """Keys were configured, but not one key came of it: the server must not start open."""
+
+
 def load_keys(settings: Settings) -> KeyRing:
-    """Keys from ``COLDSEAM_API_KEYS`` (plain, hashed here) and ``COLDSEAM_API_KEY_HASHES_FILE``."""
+    """Keys from ``COLDSEAM_API_KEYS`` (plain, hashed here) and ``COLDSEAM_API_KEY_HASHES_FILE``.
+
+    Raises NoKeysLoaded when either is set but holds no key (``","``, blanks, an empty or
+    comments-only file): a typo there must not serve an open API.
+    """
     digests = [key_digest(k.strip()) for k in (settings.api_keys or "").split(",") if k.strip()]
+    if settings.api_keys is not None and not digests:
+        raise NoKeysLoaded("COLDSEAM_API_KEYS is set but holds no key (only commas or "
+                           "blanks): give at least one key, or unset it")
     if settings.api_key_hashes_file is not None:
-        digests += read_digest_file(settings.api_key_hashes_file)
+        path = settings.api_key_hashes_file
+        try:
+            from_file = read_digest_file(path)
+        except OSError as exc:
+            raise NoKeysLoaded(f"COLDSEAM_API_KEY_HASHES_FILE {path} cannot be read: "
+                               f"{exc.strerror or exc}") from None
+        if not from_file:
+            raise NoKeysLoaded(f"COLDSEAM_API_KEY_HASHES_FILE {path} holds no key digest "
+                               "(it is empty or all comments): add one "
+                               "(`coldseam hash-key`), or unset it")
+        digests += from_file
     return KeyRing(tuple(dict.fromkeys(digests)))
 
 

@@ -9,7 +9,6 @@ to the pool by the ``BatchRunner`` and the answers built by ``batch_view``.
 from __future__ import annotations
 
 import asyncio
-import json
 from typing import Annotated, Any
 
 from fastapi import APIRouter, Depends, HTTPException, Query, Request
@@ -28,6 +27,7 @@ from coldseam.batches.schedule import parse_schedule
 from coldseam.batches.spec import parse_batch
 from coldseam.batches.tables import result_rows, to_csv, to_xlsx
 from coldseam.errors import InvalidSection
+from coldseam.schema.jsonlimits import load_json
 
 router = APIRouter(prefix="/batches", tags=["batches"])
 XLSX = "application/vnd.openxmlformats-officedocument.spreadsheetml.sheet"
@@ -81,11 +81,12 @@ def _parse(text: str, csv: bool, name: str | None, max_items: int) -> Any:
     if csv:
         return parse_batch(parse_schedule(text, name), max_items)
     try:
-        data = json.loads(text)
-    except json.JSONDecodeError as exc:
-        raise InvalidSection(f"the body is not valid JSON: {exc.msg} at line {exc.lineno} "
-                             f"column {exc.colno} (a CSV schedule needs Content-Type: "
-                             "text/csv)") from None
+        data = load_json(text)
+    except InvalidSection as exc:
+        if "not valid JSON" not in exc.message:
+            raise
+        raise InvalidSection(f"{exc.message} (a CSV schedule needs Content-Type: text/csv)",
+                             exc.field) from None
     if name is not None and isinstance(data, dict):
         data.setdefault("name", name)
     return parse_batch(data, max_items)

@@ -30,6 +30,7 @@ from coldseam.api.limits import check_limits
 from coldseam.api.models import EvaluationAccepted
 from coldseam.errors import InvalidSection
 from coldseam.schema.evaluation import EvaluationRequest, parse_request
+from coldseam.schema.jsonlimits import load_json
 
 router = APIRouter(tags=["templates and materials"])
 TemplateId = Annotated[str, Path(description="A template id (GET /api/v1/templates).",
@@ -176,11 +177,7 @@ async def read_parameters(request: Request) -> dict[str, Any]:
     text = await read_text(request)
     if not text.strip():
         return {}
-    try:
-        body = json.loads(text)
-    except json.JSONDecodeError as exc:
-        raise InvalidSection(f"the body is not valid JSON: {exc.msg} at line {exc.lineno} "
-                             f"column {exc.colno}") from None
+    body = load_json(text)
     if not isinstance(body, dict) or not isinstance(body.get("parameters", {}), dict):
         raise InvalidSection("the body must be {\"parameters\": {name: value, ...}}",
                              "/parameters")

@@ -9,6 +9,7 @@ from fastapi.security import HTTPAuthorizationCredentials, HTTPBearer
 
 from coldseam.api.auth import OPEN_OWNER, KeyRing
 from coldseam.api.jobs import Evaluations
+from coldseam.errors import InvalidSection
 from coldseam.settings import Settings, get_settings
 
 SettingsDep = Annotated[Settings, Depends(get_settings)]
@@ -42,6 +43,16 @@ def get_owner(request: Request,
         raise HTTPException(401, "the API key is not accepted by this server",
                             headers=challenge)
     return owner
+
+
+def single_query_values(request: Request) -> None:
+    """A query parameter given twice is refused: which one was meant is not guessed."""
+    seen: set[str] = set()
+    for name, _ in request.query_params.multi_items():
+        if name in seen:
+            raise InvalidSection(f"the query parameter '{name}' is given twice: give it once",
+                                 f"/query/{name}")
+        seen.add(name)
 
 
 def takes_query_key(request: Request) -> bool:

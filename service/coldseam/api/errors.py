@@ -15,8 +15,7 @@ from fastapi.responses import JSONResponse, PlainTextResponse, Response
 from starlette.exceptions import HTTPException as StarletteHTTPException
 
 from coldseam.api.pool import ClusterUnavailable, QueueFull
-from coldseam.api.store import StoreError, StoreUnavailable
-from coldseam.errors import ColdseamError
+from coldseam.errors import ColdseamError, StoreUnavailable
 
 log = logging.getLogger(__name__)
 
@@ -28,9 +27,10 @@ STATUS_BY_KIND = {
     "SolveFailed": 500,
     "WorkerCrashed": 500,
     "StoreFailed": 500,
+    "StoreFull": 507,
+    "StoreUnavailable": 503,
     "Timeout": 504,
     "Interrupted": 503,
-    "StoreUnavailable": 503,
     "ClusterUnavailable": 503,
     "Cancelled": 409,
 }
@@ -45,6 +45,18 @@ class BodyTooLarge(HTTPException):
 
     def __init__(self, limit: int) -> None:
         super().__init__(413, f"the request body is larger than the {limit} byte limit")
+        self.limit = limit
+
+    def __str__(self) -> str:
+        return str(self.detail)
+
+
+class BodySlow(HTTPException):
+    """The request body did not arrive within ``body_timeout`` seconds (HTTP 408)."""
+
+    def __init__(self, limit: float) -> None:
+        super().__init__(408, f"the request body did not arrive within {limit:g} s; send it "
+                         "at once (this server does not wait on slow uploads)")
         self.limit = limit
 
     def __str__(self) -> str:
@@ -163,8 +175,8 @@ async def _queue_full(request: Request, exc: QueueFull) -> Response:
 
 async def _store_unavailable(request: Request, exc: StoreUnavailable) -> Response:
     log.warning("request %s answered 503: %s", request_id_of(request), exc)
-    body = error_body("StoreUnavailable", f"{exc}; the service resumes by itself when the "
-                      f"database is back: try again in {UNAVAILABLE_RETRY} s", "",
+    body = error_body("StoreUnavailable", f"{exc.message}; the service resumes by itself "
+                      f"when the store is back: try again in {UNAVAILABLE_RETRY} s", "",
                       request_id_of(request))
     return respond(request, body, 503, {"Retry-After": str(UNAVAILABLE_RETRY)})
 
@@ -174,11 +186,6 @@ async def _cluster_unavailable(request: Request, exc: ClusterUnavailable) -> Res
     body = error_body("ClusterUnavailable", f"{exc}; try again in {UNAVAILABLE_RETRY} s", "",
                       request_id_of(request))
     return respond(request, body, 503, {"Retry-After": str(UNAVAILABLE_RETRY)})
-
-
-async def _store_error(request: Request, exc: StoreError) -> Response:
-    body = error_body("StoreFailed", str(exc), "", request_id_of(request))
-    return respond(request, body, 500)
 
 
 async def _body_too_large(request: Request, exc: BodyTooLarge) -> Response:
@@ -202,7 +209,6 @@ def install(app: FastAPI) -> None:
     app.add_exception_handler(QueueFull, _queue_full)
     app.add_exception_handler(BodyTooLarge, _body_too_large)
     app.add_exception_handler(StoreUnavailable, _store_unavailable)
-    app.add_exception_handler(StoreError, _store_error)
     app.add_exception_handler(ClusterUnavailable, _cluster_unavailable)
     app.add_exception_handler(EvaluationFailed, _evaluation_failed)
     app.add_exception_handler(Exception, _unexpected)

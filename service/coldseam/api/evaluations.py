@@ -26,6 +26,7 @@ from coldseam.api.models import (
 from coldseam.api.store import Record
 from coldseam.errors import InvalidSection
 from coldseam.schema.evaluation import EvaluationRequest, parse_request
+from coldseam.schema.jsonlimits import load_json
 from coldseam.settings import Settings
 
 router = APIRouter(prefix="/evaluations", tags=["evaluations"])
@@ -34,7 +35,10 @@ ERRORS: dict[int | str, dict[str, Any]] = {
     413: {"model": ErrorOut, "description": "Body, vertices, regions or mesh over the limits."},
     422: {"model": ErrorOut, "description": "The request names the offending field.",
           "content": {"application/json": {"example": examples.INVALID}}},
+    408: {"model": ErrorOut, "description": "The body did not arrive within the time limit."},
     429: {"model": ErrorOut, "description": "Queue full; see Retry-After."},
+    503: {"model": ErrorOut, "description": "The result store cannot be written."},
+    507: {"model": ErrorOut, "description": "The disk holding results is full."},
 }
 REQUEST_BODY = {
     "required": True,
@@ -139,12 +143,7 @@ async def read_text(request: Request) -> str:
 
 def parse_checked(text: str, settings: Settings) -> EvaluationRequest:
     """Decode, validate and size-check a request body."""
-    try:
-        data = json.loads(text)
-    except json.JSONDecodeError as exc:
-        raise InvalidSection(f"the body is not valid JSON: {exc.msg} at line {exc.lineno} "
-                             f"column {exc.colno}") from None
-    parsed = parse_request(data)
+    parsed = parse_request(load_json(text))
     check_limits(parsed, settings)
     return parsed
 

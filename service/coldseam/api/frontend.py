@@ -14,6 +14,8 @@ log = logging.getLogger(__name__)
 
 #: Parts of the frontend folder that are for developers, not for the browser.
 PRIVATE = ("tests", "node_modules", "package.json", "package-lock.json")
+#: Files of these kinds are notes for developers wherever they are (frontend/README.md).
+PRIVATE_SUFFIXES = (".md",)
 
 
 class PageFiles(StaticFiles):
@@ -22,7 +24,8 @@ class PageFiles(StaticFiles):
     def get_path(self, scope) -> str:
         path = super().get_path(scope)
         first = Path(path).parts[0] if Path(path).parts else ""
-        return "\0missing" if first in PRIVATE else path
+        private = first in PRIVATE or path.lower().endswith(PRIVATE_SUFFIXES)
+        return "\0missing" if private else path
 
 
 def mount(app: FastAPI, directory: Path | None) -> None:

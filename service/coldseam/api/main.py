@@ -27,11 +27,12 @@ from coldseam.api import (
 )
 from coldseam.api.auth import load_keys
 from coldseam.api.batch_runner import BatchRunner
-from coldseam.api.deps import SettingsDep, get_owner
+from coldseam.api.deps import get_owner, single_query_values
 from coldseam.api.jobs import Evaluations
 from coldseam.api.middleware import ServiceMiddleware
 from coldseam.api.models import Health
 from coldseam.api.pool import WorkerPool
+from coldseam.api.reader import ReaderGate
 from coldseam.api.stores import open_store, redact
 from coldseam.settings import Settings, get_settings
 
@@ -47,6 +48,7 @@ Figures must be checked by a competent person; local codes and licensed practice
 async def lifespan(app: FastAPI) -> AsyncIterator[None]:
     settings: Settings = app.dependency_overrides.get(get_settings, get_settings)()
     app.state.keys = load_keys(settings)
+    app.state.workers = settings.workers
     store = await run_in_threadpool(open_store, settings)
     if count := store.interrupt_unfinished("the server stopped before this evaluation "
                                            "finished; send it again"):
@@ -67,6 +69,7 @@ async def lifespan(app: FastAPI) -> AsyncIterator[None]:
     finally:
         await run_in_threadpool(app.state.batches.stop)
         await run_in_threadpool(pool.shutdown)
+        app.state.evaluations.flush_unstored()
         store.close()
 
 
@@ -93,7 +96,8 @@ def create_app(settings: Settings | None = None) -> FastAPI:
         app.dependency_overrides[get_settings] = lambda: settings
     else:
         settings = get_settings()
-    api = APIRouter(prefix="/api/v1", dependencies=[Depends(get_owner)])
+    api = APIRouter(prefix="/api/v1", dependencies=[Depends(get_owner),
+                                                          Depends(single_query_values)])
     for module in (evaluations, pictures, imports, catalogue, batches, batch_report):
         api.include_router(module.router)
     app.include_router(api)
@@ -107,18 +111,21 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     return app
 
 
-def health(request: Request, settings: SettingsDep) -> Health:
-    """The service is up (no key needed)."""
+async def health(request: Request) -> Health:
+    """The service is up (no key needed). Answered on the event loop itself, touching neither
+    the store nor the thread pool, so that it answers at once however busy the server is."""
     return Health(status="ok", version=__version__, engine_version=ENGINE_VERSION,
-                  workers=settings.workers, auth="open" if request.app.state.keys.open
+                  workers=request.app.state.workers, auth="open" if request.app.state.keys.open
                   else "keys")
 
 
 def _add_middleware(app: FastAPI, settings: Settings) -> None:
+    app.add_middleware(ReaderGate, memory_mb=settings.worker_memory_mb)
     app.add_middleware(GZipMiddleware, minimum_size=4096)
     if settings.cors_origin_list:
         app.add_middleware(CORSMiddleware, allow_origins=settings.cors_origin_list,
                            allow_methods=["GET", "POST"],
                            allow_headers=["Authorization", "Content-Type"],
                            expose_headers=["Location", "Retry-After", "X-Request-ID"])
-    app.add_middleware(ServiceMiddleware, max_body_bytes=settings.max_body_bytes)
+    app.add_middleware(ServiceMiddleware, max_body_bytes=settings.max_body_bytes,
+                       body_timeout=settings.body_timeout)

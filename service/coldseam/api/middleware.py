@@ -1,7 +1,10 @@
-"""Plain ASGI middleware: request id, one log line per request, security headers, body limit."""
+"""Plain ASGI middleware: request id, one log line per request, security headers, body size
+and body read time limits, HEAD answered as GET without the body, and the last-resort 500
+(answered here, inside the middleware, so that it carries the security headers too)."""
 
 from __future__ import annotations
 
+import asyncio
 import json
 import logging
 import re
@@ -9,7 +12,9 @@ import time
 import uuid
 from typing import Any
 
-from coldseam.api.errors import BodyTooLarge
+from starlette.requests import ClientDisconnect
+
+from coldseam.api.errors import BodySlow, BodyTooLarge
 
 log = logging.getLogger("coldseam.access")
 
@@ -37,8 +42,8 @@ Scope = dict[str, Any]
 class ServiceMiddleware:
     """Wraps every HTTP request of the app."""
 
-    def __init__(self, app: Any, max_body_bytes: int) -> None:
-        self.app, self.max_body_bytes = app, max_body_bytes
+    def __init__(self, app: Any, max_body_bytes: int, body_timeout: float = 30.0) -> None:
+        self.app, self.max_body_bytes, self.body_timeout = app, max_body_bytes, body_timeout
 
     async def __call__(self, scope: Scope, receive: Any, send: Any) -> None:
         if scope["type"] != "http":
@@ -46,13 +51,19 @@ class ServiceMiddleware:
             return
         request_id = _request_id(scope)
         scope.setdefault("state", {})["request_id"] = request_id
-        started, status = time.perf_counter(), {"code": 500}
+        path = scope.get("path", "")
+        head = scope.get("method") == "HEAD" and (path.startswith("/api/") or path == "/healthz")
+        if head:  # answered as GET, body left out (every API GET also takes HEAD)
+            scope = {**scope, "method": "GET"}
+        started, status = time.perf_counter(), {"code": 500, "started": False}
 
         async def send_wrapper(message: dict[str, Any]) -> None:
             if message["type"] == "http.response.start":
-                status["code"] = message["status"]
+                status["code"], status["started"] = message["status"], True
                 message["headers"] = _with_headers(message.get("headers", []), scope,
                                                    request_id)
+            elif head and message["type"] == "http.response.body":
+                message = {**message, "body": b""}
             await send(message)
 
         try:
@@ -61,14 +72,32 @@ class ServiceMiddleware:
                 await _too_large(send_wrapper, self.max_body_bytes, request_id)
             else:
                 await self.app(scope, self._limited(receive), send_wrapper)
+        except ClientDisconnect:  # the client left mid-body: no one to answer
+            status["code"] = 499
+            log.info("client went away before its request body arrived (request %s)",
+                     request_id)
+        except Exception as exc:  # noqa: BLE001 - the last resort: logged, answered 500
+            log.error("unexpected failure (request %s)", request_id, exc_info=exc)
+            if status["started"]:
+                raise
+            await _internal_error(send_wrapper, request_id)
         finally:
             _log_line(scope, status["code"], started, request_id)
 
     def _limited(self, receive: Any) -> Any:
-        seen = {"bytes": 0}
+        seen = {"bytes": 0, "deadline": None, "done": False}
 
         async def limited_receive() -> dict[str, Any]:
-            message = await receive()
+            if seen["done"]:  # the body is in: what follows is the wait for a disconnect
+                return await receive()
+            loop = asyncio.get_running_loop()
+            if seen["deadline"] is None:
+                seen["deadline"] = loop.time() + self.body_timeout
+            try:
+                message = await asyncio.wait_for(receive(), seen["deadline"] - loop.time())
+            except TimeoutError:
+                raise BodySlow(self.body_timeout) from None
+            seen["done"] = not message.get("more_body", False)
             seen["bytes"] += len(message.get("body", b""))
             if seen["bytes"] > self.max_body_bytes:
                 raise BodyTooLarge(self.max_body_bytes)
@@ -82,6 +111,15 @@ async def _too_large(send: Any, limit: int, request_id: str) -> None:
     body = json.dumps({"detail": message, "field": "", "message": message,
                        "kind": "LimitExceeded", "request_id": request_id}).encode()
     await send({"type": "http.response.start", "status": 413,
+                "headers": [(b"content-type", b"application/json"),
+                            (b"content-length", str(len(body)).encode())]})
+    await send({"type": "http.response.body", "body": body})
+
+
+async def _internal_error(send: Any, request_id: str) -> None:
+    body = json.dumps({"detail": f"internal error (request id {request_id}); it has been "
+                       "logged", "kind": "InternalError", "request_id": request_id}).encode()
+    await send({"type": "http.response.start", "status": 500,
                 "headers": [(b"content-type", b"application/json"),
                             (b"content-length", str(len(body)).encode())]})
     await send({"type": "http.response.body", "body": body})

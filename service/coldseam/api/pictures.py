@@ -64,6 +64,33 @@ async def picture_png(evaluation_id: str, evaluations: EvaluationsDep,
     return Response(png, media_type="image/png")
 
 
+def _transient_result(evaluations: Evaluations, owner: str, evaluation_id: str) -> dict:
+    _, record = finished(evaluations, owner, evaluation_id)
+    result = {"id": record.id, **(record.result or {})}
+    if not (result.get("dynamics") or {}).get("transient"):
+        raise HTTPException(404, f"evaluation {evaluation_id} has no transient run (ask for "
+                            "one with dynamics.transient in the request)")
+    return result
+
+
+@router.get("/{evaluation_id}/transient.svg", response_class=Response, responses=NOT_FOUND)
+async def transient_svg(evaluation_id: str, evaluations: EvaluationsDep,
+                        owner: OwnerDep) -> Response:
+    """The transient run (surface temperatures, dew point, heat flows over time) as SVG."""
+    result = await run_in_threadpool(_transient_result, evaluations, owner, evaluation_id)
+    render = reporting("transient_plot", "render_transient_svg")
+    return Response(await run_in_threadpool(render, result), media_type="image/svg+xml")
+
+
+@router.get("/{evaluation_id}/transient.png", response_class=Response, responses=NOT_FOUND)
+async def transient_png(evaluation_id: str, evaluations: EvaluationsDep,
+                        owner: OwnerDep) -> Response:
+    """The transient run as PNG."""
+    result = await run_in_threadpool(_transient_result, evaluations, owner, evaluation_id)
+    render = reporting("transient_plot", "render_transient_png")
+    return Response(await run_in_threadpool(render, result), media_type="image/png")
+
+
 HeaderText = Annotated[str | None, Query(max_length=200)]
 
 
@@ -83,6 +110,10 @@ async def report(evaluation_id: str, evaluations: EvaluationsDep, owner: OwnerDe
     svg = await run_in_threadpool(render_svg, field, result)
     details = {"project": project, "author": author, "checked_by": checked_by,
                "date": (date or datetime.date.today()).isoformat()}
-    html = await run_in_threadpool(lambda: render_report(result, request, svg,
+    extra = ()  # the transient picture of a dynamic evaluation
+    if (result.get("dynamics") or {}).get("transient"):
+        extra = (await run_in_threadpool(
+            reporting("transient_plot", "render_transient_svg"), result),)
+    html = await run_in_threadpool(lambda: render_report(result, request, svg, *extra,
                                                          details=details))
     return HTMLResponse(html)

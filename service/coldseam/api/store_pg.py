@@ -17,18 +17,18 @@ from __future__ import annotations
 
 import logging
 import time
-import zlib
 from collections.abc import Iterator
 from contextlib import contextmanager
 from typing import Any
 
 from sqlalchemy import Connection, create_engine, exc, text
 
+from coldseam.api import fieldpack
 from coldseam.api.batch_store_pg import PgBatchTables
 from coldseam.api.store import (
     UNFINISHED,
     Record,
-    StoreError,
+    StoreFailure,
     StoreUnavailable,
     _dumps,
     _record,
@@ -59,6 +59,9 @@ def engine_url(url: str) -> str:
 class PostgresStore(PgBatchTables):
     """The evaluations (and batches, ``PgBatchTables``) of one PostgreSQL database, for the
     server named ``instance``."""
+
+    #: A finished result waits for the database to come back (``jobs.Evaluations``).
+    waits_when_unavailable = True
 
     def __init__(self, url: str, instance: str, wait: float = 30.0) -> None:
         self.instance, self.url = instance, redact(url)
@@ -102,8 +105,8 @@ class PostgresStore(PgBatchTables):
                 raise StoreUnavailable(f"the connection to the results database was lost "
                                        f"({_reason(error)})") from None
             log.error("database error: %s", error)
-            raise StoreError(f"the results database refused the change ({_reason(error)})"
-                             ) from error
+            raise StoreFailure(f"the results database refused the change "
+                               f"({_reason(error)})") from error
 
     def _write(self, sql: str, params: dict[str, Any]) -> int:
         with self._tx() as conn:
@@ -173,7 +176,7 @@ class PostgresStore(PgBatchTables):
         with self._tx() as conn:
             row = conn.execute(text("SELECT field FROM evaluations WHERE key=:key"),
                                {"key": key}).first()
-        return zlib.decompress(row[0]) if row and row[0] is not None else None
+        return fieldpack.to_json(bytes(row[0])) if row and row[0] is not None else None
 
     def page(self, owner: str, limit: int, offset: int) -> tuple[list[Record], int]:
         """``limit`` records of ``owner`` from ``offset``, newest first, and the total."""

@@ -3,7 +3,8 @@
 The parent sends ``("run", request_dict)`` over a pipe; the worker answers with any number of
 ``("progress", stage, fraction)`` and then one of
 
-* ``("done", result, field)``  - the engine's Evaluation.result and Evaluation.field,
+* ``("done", result, field)``  - the engine's Evaluation.result and its field (the arrays
+  form, Evaluation.arrays, when the engine has it; else Evaluation.field),
 * ``("error", kind, message, field)`` - a typed Coldseam error (kind: its class name), or
   kind OUT_OF_MEMORY when an allocation failed; the worker then ends.
 
@@ -105,7 +106,10 @@ def run_one(engine: Engine, request_dict: dict[str, Any],
         return ("error", type(exc).__name__, exc.message, exc.field)
     except MemoryError:
         return ("error", OUT_OF_MEMORY, memory_message(memory_limit), MEMORY_FIELD)
-    return ("done", evaluation.result, evaluation.field)
+    # The field's arrays as they are (one copy each through the pipe, no lists): see
+    # coldseam.thermal.field; an engine without them sends its field document.
+    field = getattr(evaluation, "arrays", None)
+    return ("done", evaluation.result, evaluation.field if field is None else field)
 
 
 def memory_message(memory_limit: int, stage: str | None = None) -> str:

@@ -71,8 +71,14 @@ def _accumulate(index: np.ndarray, values: np.ndarray, size: int) -> np.ndarray:
 
 
 def residual_indicators(space: Space, conductivity: np.ndarray, conductance: np.ndarray,
-                        theta: np.ndarray, ambient: np.ndarray) -> np.ndarray:
-    """ηₖ² (E, k) of each of the k solutions θ (D, k) with boundary temperatures (B, k)."""
+                        theta: np.ndarray, ambient: np.ndarray,
+                        source: np.ndarray | None = None) -> np.ndarray:
+    """ηₖ² (E, k) of each of the k solutions θ (D, k) with boundary temperatures (B, k);
+    ``conductance`` h (B,) for all of them, or (B, k) per solution (solutions of problems
+    that differ in their surface resistances only, indicated in one pass).
+
+    ``source`` (E, k): a right-hand side s of ∇·(Λ∇θ) = s, constant per triangle, taken off
+    the element residual (dynamic problems: s = ρc θ' at the triangle's mean)."""
     mesh = space.mesh
     theta = theta.reshape(len(theta), -1)
     ambient = ambient.reshape(len(ambient), -1)
@@ -113,10 +119,11 @@ def residual_indicators(space: Space, conductivity: np.ndarray, conductance: np.
         surface = np.stack([np.where(forward, values[:, 0], values[:, 1]), middle,
                             np.where(forward, values[:, 1], values[:, 0])], axis=1)
         surface = surface - ambient[:, None, :]
-        known = ~np.isfinite(conductance)
-        h = np.where(known, 0.0, conductance)
-        jump[where] -= h[:, None, None] * surface
-        jump[where[known]] = 0.0
+        h = np.broadcast_to(conductance.reshape(len(conductance), -1), (len(where), k))
+        known = ~np.isfinite(h)
+        jump[where] -= np.where(known, 0.0, h)[:, None, :] * surface
+        for c in range(k):
+            jump[where[known[:, c]], :, c] = 0.0
 
     length = np.linalg.norm(mesh.points[edges[:, 1]] - mesh.points[edges[:, 0]], axis=1)
     squared = (jump[:, 0] ** 2 + 4 * jump[:, 1] ** 2 + jump[:, 2] ** 2) * length[:, None] / 6
@@ -126,6 +133,12 @@ def residual_indicators(space: Space, conductivity: np.ndarray, conductance: np.
     if space.order == 2:
         diameter = np.max(np.stack([np.linalg.norm(pts[:, j] - pts[:, i], axis=1)
                                     for i, j in _SIDES], axis=1), axis=1)
-        residual = _divergence(space, theta, grad_lambda, conductivity) ** 2
-        eta += (diameter ** 2 / mean_lambda * area)[:, None] * residual
+        residual = _divergence(space, theta, grad_lambda, conductivity)
+        if source is not None:
+            residual = residual - source
+        eta += (diameter ** 2 / mean_lambda * area)[:, None] * residual ** 2
+    elif source is not None:
+        diameter = np.max(np.stack([np.linalg.norm(pts[:, j] - pts[:, i], axis=1)
+                                    for i, j in _SIDES], axis=1), axis=1)
+        eta += (diameter ** 2 / mean_lambda * area)[:, None] * source ** 2
     return eta

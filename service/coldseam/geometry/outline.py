@@ -52,42 +52,75 @@ def classify(section: Section, partition: Partition) -> Classified:
 
 
 def _on_lines(partition, segments, lines, tol) -> set[tuple[int, int]]:
+    if not segments or not lines:
+        return set()
     pts = partition.points
-    out = set()
-    for seg in segments:
-        a, c = pts[seg[0]], pts[seg[1]]
-        probe = shapely.points([a, c, 0.5 * (a + c)])
-        if any(np.all(shapely.distance(line, probe) <= tol) for line in lines):
-            out.add(seg)
-    return out
+    ends = np.asarray(segments)
+    a, c = pts[ends[:, 0]], pts[ends[:, 1]]
+    probes = shapely.points(np.concatenate([a, c, 0.5 * (a + c)]))
+    on = np.zeros(len(segments), bool)
+    for line in lines:  # one vectorised distance call per line
+        on |= (shapely.distance(line, probes) <= tol).reshape(3, -1).all(axis=0)
+    return {segments[k] for k in np.flatnonzero(on)}
 
 
 def _split_at(partition: Partition, p: np.ndarray, tol: float) -> int | None:
-    """Insert point p into every ring segment it lies on (within tol); its index, if on one."""
+    """Insert point p into every ring segment it lies on (within tol); its index, if on one.
+
+    Vectorised over all segments (numpy), so that a path of many points costs a numpy pass
+    over the outline per point, not a Python loop over every segment."""
     pts = partition.points
     near = np.flatnonzero(np.linalg.norm(pts - p, axis=1) <= tol)
     if len(near):
         return int(near[0])
-    new_index = None
-    for face in partition.faces:
-        for ring in face.rings:
-            for k in range(len(ring)):
-                a, b = ring[k], ring[(k + 1) % len(ring)]
-                if _on_segment(pts[a], pts[b], p, tol):
-                    if new_index is None:
-                        partition.points = pts = np.vstack([pts, p])
-                        new_index = len(pts) - 1
-                    ring.insert(k + 1, new_index)
-                    break
+    hits = _segments_through(partition, p, tol)
+    if not hits:
+        return None
+    partition.points = np.vstack([pts, p])
+    new_index = len(partition.points) - 1
+    for face, ring, k in hits:
+        partition.faces[face].rings[ring].insert(k + 1, new_index)
+    partition.__dict__.pop("_segment_table", None)  # the rings changed
     return new_index
 
 
-def _on_segment(a: np.ndarray, b: np.ndarray, p: np.ndarray, tol: float) -> bool:
+def _segments_through(partition: Partition, p: np.ndarray, tol: float) -> list:
+    """(face, ring, k) of the first segment k of each ring that p lies on, inside it."""
+    ids, a, b = _segment_table(partition)
+    if not len(ids):
+        return []
     d = b - a
-    t = float(np.dot(p - a, d) / np.dot(d, d))
-    if t <= 0 or t >= 1:
-        return False
-    return float(np.linalg.norm(a + t * d - p)) <= tol
+    length2 = np.einsum("ij,ij->i", d, d)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        t = np.einsum("ij,ij->i", p - a, d) / length2
+    inside = (t > 0) & (t < 1)
+    foot = a + np.where(inside, t, 0.0)[:, None] * d
+    on = np.flatnonzero(inside & (np.linalg.norm(foot - p, axis=1) <= tol))
+    first: dict[tuple[int, int], int] = {}
+    for row in on:
+        face, ring, k = (int(v) for v in ids[row])
+        first.setdefault((face, ring), k)
+    return [(face, ring, k) for (face, ring), k in first.items()]
+
+
+def _segment_table(partition: Partition) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Every ring segment as (face, ring, k) and its end points; cached until a ring changes."""
+    table = partition.__dict__.get("_segment_table")
+    if table is None:
+        ids, starts, ends = [], [], []
+        for f, face in enumerate(partition.faces):
+            for r, ring in enumerate(face.rings):
+                index = np.asarray(ring)
+                ids.append(np.column_stack([np.full(len(ring), f), np.full(len(ring), r),
+                                            np.arange(len(ring))]))
+                starts.append(index)
+                ends.append(np.roll(index, -1))
+        if not ids:
+            return np.zeros((0, 3), int), np.zeros((0, 2)), np.zeros((0, 2))
+        pts = partition.points
+        table = (np.vstack(ids), pts[np.concatenate(starts)], pts[np.concatenate(ends)])
+        partition.__dict__["_segment_table"] = table
+    return table
 
 
 def _place_probes(section: Section, partition: Partition, tol: float):
@@ -115,20 +148,24 @@ def _match_paths(section, partition, outline, paths, tol) -> dict[tuple[int, int
     pts = partition.points
     exposure: dict[tuple[int, int], int] = {}
     for b, path in enumerate(paths):
-        buffer = path.buffer(tol, cap_style="flat" if path.length > 0 else "round")
+        # Distances to the path, never a buffer of it: GEOS buffers a path that doubles back
+        # on itself in time and memory far beyond its size (600 points: ~40 s, or a crash).
+        # One vectorised distance call per path: both ends and the midpoint of every segment.
         hit = False
-        for seg in outline:
-            a, c = pts[seg[0]], pts[seg[1]]
-            probe = shapely.points([a, c, 0.5 * (a + c)])
-            if np.all(shapely.distance(path, probe) <= tol):
-                exposure[seg] = b
-                hit = True
+        if outline:
+            ends = np.asarray(outline)
+            a, c = pts[ends[:, 0]], pts[ends[:, 1]]
+            probes = shapely.points(np.concatenate([a, c, 0.5 * (a + c)]))
+            near = (shapely.distance(path, probes) <= tol).reshape(3, -1).all(axis=0)
+            for k in np.flatnonzero(near):
+                exposure[outline[k]] = b
+            hit = bool(near.any())
         if not hit:
-            _explain_miss(section, partition, outline, b, path, buffer)
+            _explain_miss(section, partition, outline, b, path)
     return exposure
 
 
-def _explain_miss(section, partition, outline, b, path, _buffer) -> None:
+def _explain_miss(section, partition, outline, b, path) -> None:
     pts = partition.points
     rings = shapely.MultiLineString([[pts[a], pts[c]] for a, c in outline])
     gap = path.distance(rings)

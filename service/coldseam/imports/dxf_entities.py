@@ -135,6 +135,8 @@ def shapes_of(entity: DXFGraphic, layer: str, index: int, chord: float, budget: 
         key = (layer, kind if kind not in GEOMETRY_TYPES else f"{kind} out of the drawing plane")
         budget.skipped[key] = budget.skipped.get(key, 0) + 1
         return []
+    if kind in ("ELLIPSE", "SPLINE"):
+        chord = curve_chord(entity, kind, chord, budget)
     shapes = [
         Shape(layer, kind, points, closed, index)
         for points, closed in _flatten(entity, kind, chord)
@@ -144,6 +146,43 @@ def shapes_of(entity: DXFGraphic, layer: str, index: int, chord: float, budget: 
         raise ValueError("a coordinate is not a finite number")
     budget.count_vertices(sum(len(s.points) for s in shapes))
     return shapes
+
+
+#: Chord error of ellipses and splines relaxed to this share of their size (as for circles).
+CURVE_SHARE = 2e-4
+#: ezdxf's flattening makes at least this many segments per ellipse or spline span.
+SEGMENTS = 16
+
+
+def curve_chord(entity: DXFGraphic, kind: str, chord: float, budget: _Budget) -> float:
+    """The chord error to flatten an ellipse or spline with: at least CURVE_SHARE of its
+    size, so that a huge curve stays a few hundred points; LimitExceeded when even so its
+    estimated points (counted before flattening) would pass the drawing's vertex limit."""
+    size, spans = _curve_size(entity, kind)
+    if not math.isfinite(size):
+        raise ValueError(f"a {kind.lower()} has a coordinate that is not a finite number")
+    relaxed = max(chord, CURVE_SHARE * size)
+    # a curve of size a flattened to sagitta s: about sqrt(π a / s) points over its length
+    estimate = SEGMENTS * spans + (math.sqrt(math.pi * size / relaxed) if relaxed > 0 else 0)
+    if budget.vertices + estimate > budget.limits.max_vertices:
+        raise LimitExceeded(
+            f"a {kind.lower()} of the drawing would tessellate to about {estimate:.0f} "
+            f"vertices (estimated before flattening), past the limit of "
+            f"{budget.limits.max_vertices}; simplify it or export only the junction detail",
+            "/file")
+    return relaxed
+
+
+def _curve_size(entity: DXFGraphic, kind: str) -> tuple[float, int]:
+    """(largest extent in drawing units, spans) of an ellipse or spline."""
+    if kind == "ELLIPSE":
+        return 2 * Vec3(entity.dxf.major_axis).magnitude, 4
+    points = list(entity.control_points) or list(entity.fit_points)
+    if not points:
+        return 0.0, 1
+    xs, ys = [p[0] for p in points], [p[1] for p in points]
+    size = max(max(xs) - min(xs), max(ys) - min(ys))
+    return size, max(1, len(points) - int(entity.dxf.get("degree", 3)))
 
 
 def _in_drawing_plane(entity: DXFGraphic) -> bool:

@@ -1,7 +1,8 @@
 """The materials library: design thermal conductivities λ in W/(m·K), each with its source.
 
 The table lives in ``library.csv`` beside this module (columns id, name, conductivity,
-description, source). A section refers to a row with ``{"id": "...", "library": "<row id>"}``;
+density, specific_heat, description, source, capacity_source: ``source`` says where λ comes
+from, ``capacity_source`` where ρ and c come from, each as a reader of a report should see it). A section refers to a row with ``{"id": "...", "library": "<row id>"}``;
 :func:`resolve_materials` turns every material of a section into (λx, λy, source).
 
 >>> load_library()["steel"].conductivity
@@ -36,6 +37,9 @@ class LibraryMaterial:
     conductivity: float
     description: str
     source: str
+    density: float = 0.0  # ρ, kg/m³
+    specific_heat: float = 0.0  # c, J/(kg·K)
+    capacity_source: str = ""
 
 
 class ResolvedMaterial(NamedTuple):
@@ -68,13 +72,27 @@ def _row_to_material(row: dict[str, str], line: int) -> LibraryMaterial:
         raise ValueError(f"{LIBRARY_PATH.name} line {line}: conductivity is not a number") from None
     if not conductivity > 0:
         raise ValueError(f"{LIBRARY_PATH.name} line {line}: conductivity must be above 0")
+    density, specific_heat = (_positive(row, key, line) for key in ("density", "specific_heat"))
     return LibraryMaterial(
         id=row["id"].strip(),
         name=row["name"].strip(),
         conductivity=conductivity,
         description=row["description"].strip(),
         source=row["source"].strip(),
+        density=density,
+        specific_heat=specific_heat,
+        capacity_source=row["capacity_source"].strip(),
     )
+
+
+def _positive(row: dict[str, str], key: str, line: int) -> float:
+    try:
+        value = float(row[key])
+    except (KeyError, TypeError, ValueError):
+        raise ValueError(f"{LIBRARY_PATH.name} line {line}: {key} is not a number") from None
+    if not value > 0:
+        raise ValueError(f"{LIBRARY_PATH.name} line {line}: {key} must be above 0")
+    return value
 
 
 def lookup(material_id: str, field: str) -> LibraryMaterial:
@@ -107,3 +125,32 @@ def resolve_materials(section: Section) -> dict[str, ResolvedMaterial]:
         source = f"library '{row.id}': {row.source}"
         resolved[material.id] = ResolvedMaterial(row.conductivity, row.conductivity, source)
     return resolved
+
+
+class ResolvedCapacity(NamedTuple):
+    """Density ρ in kg/m³ and specific heat c in J/(kg·K) of one material, and their source;
+    ``None`` values when neither the section nor the library gives them."""
+
+    density: float | None
+    specific_heat: float | None
+    source: str
+
+
+def resolve_capacities(section: Section) -> dict[str, ResolvedCapacity]:
+    """(ρ, c, source) for every material of ``section``: values given in the section win,
+    each missing one is taken from the library row the material names (if any)."""
+    out: dict[str, ResolvedCapacity] = {}
+    for i, material in enumerate(section.materials):
+        rho, c = getattr(material, "density", None), getattr(material, "specific_heat", None)
+        given = rho is not None and c is not None
+        row = (lookup(str(material.library), f"/section/materials/{i}/library")
+               if material.library and not given else None)
+        if row is None:
+            out[material.id] = ResolvedCapacity(rho, c, SECTION_SOURCE if given else "")
+            continue
+        source = f"library '{row.id}': {row.capacity_source}"
+        if rho is not None or c is not None:
+            source = f"partly given in the section, the rest from {source}"
+        out[material.id] = ResolvedCapacity(row.density if rho is None else rho,
+                                            row.specific_heat if c is None else c, source)
+    return out

@@ -172,7 +172,17 @@ def plan(classified: Classified, factor: float = 1.0) -> SegmentPlan:
     """Discretise every segment for a level whose sizes are the level-0 sizes / factor
     (the whole size function scales, growth included, so nodes grow as factor²), except at
     junction vertices, where sizes shrink as factor^VERTEX_POWER: singular corners need ever
-    stronger grading, at a cost that grows only with the logarithm of the size ratio."""
+    stronger grading, at a cost that grows only with the logarithm of the size ratio.
+
+    Kept on ``classified`` per factor: the node estimate and the first level ask for the same
+    plan (it is only read afterwards)."""
+    cache = vars(classified).setdefault("_plans", {})
+    if factor not in cache:
+        cache[factor] = _plan(classified, factor)
+    return cache[factor]
+
+
+def _plan(classified: Classified, factor: float) -> SegmentPlan:
     part = classified.partition
     extent = part.extent
     h_max, h_junction = H_MAX * extent, H_JUNCTION * extent

@@ -32,6 +32,7 @@ from coldseam.reporting.html_parts import (
     tag,
 )
 from coldseam.reporting.report_cavities import cavities_block, frame_block
+from coldseam.reporting.report_dynamics import dynamics_block
 from coldseam.reporting.report_results import (
     condensation_block,
     convergence_block,
@@ -43,11 +44,12 @@ from coldseam.reporting.report_results import (
 from coldseam.reporting.report_style import CSS
 
 
-def render_report(result: dict, request: dict, svg: str, *, generated: str | None = None,
-                  details: dict | None = None) -> str:
-    """The report as one HTML document. ``generated``: an optional date line; ``details``:
-    the title block's ``project``, ``author``, ``checked_by`` and ``date`` (any missing one is
-    left as a blank to fill in by hand)."""
+def render_report(result: dict, request: dict, svg: str, transient_svg: str | None = None, *,
+                  generated: str | None = None, details: dict | None = None) -> str:
+    """The report as one HTML document. ``transient_svg``: the transient picture of a
+    dynamic evaluation; ``generated``: an optional date line; ``details``: the title block's
+    ``project``, ``author``, ``checked_by`` and ``date`` (any missing one is left as a blank
+    to fill in by hand)."""
     result, request = as_dict(result), as_dict(request)
     sec = as_dict(request.get("section"))
     unit = sec.get("unit") if sec.get("unit") in ("mm", "m") else "m"
@@ -64,6 +66,7 @@ def render_report(result: dict, request: dict, svg: str, *, generated: str | Non
         frame_block(result),
         cavities_block(result, unit),
         condensation_block(result, unit),
+        dynamics_block(result, transient_svg),
         convergence_block(result),
         sensitivities_block(result),
         section("Warnings", bullet_list(str(w) for w in as_list(result.get("warnings")))),
@@ -158,6 +161,7 @@ def _materials_table(sec: dict, result: dict) -> Html:
     used = [as_dict(m) for m in as_list(result.get("materials"))]
     listed = {str(m.get("id")) for m in used}
     used += [m for key, m in given.items() if key not in listed]
+    dynamic = bool(result.get("dynamics"))
     rows = []
     for m in used:
         own = as_dict(given.get(str(m.get("id"))))
@@ -165,9 +169,15 @@ def _materials_table(sec: dict, result: dict) -> Html:
                                      else "given in the request")
         lam = ("air cavity: λeq per cavity, see Air cavities" if m.get("cavity") or own.get("cavity")
                else _conductivity(m.get("conductivity", own.get("conductivity"))))
-        rows.append([m.get("id"), lam,
-                     source, own.get("description") or ""])
-    return table(["Material", "λ W/(m·K)", "Source", "Description"], rows, "Materials")
+        row = [m.get("id"), lam, source, own.get("description") or ""]
+        if dynamic:
+            row[3:3] = [number(m.get("density"), 0), number(m.get("specific_heat"), 0),
+                        m.get("capacity_source") or DASH]
+        rows.append(row)
+    head = ["Material", "λ W/(m·K)", "Source of λ", "Description"]
+    if dynamic:
+        head[3:3] = ["ρ kg/m³", "c J/(kg·K)", "Source of ρ and c"]
+    return table(head, rows, "Materials")
 
 
 def _conductivity(value: Any) -> str:

@@ -9,6 +9,7 @@ from pydantic import Field, ValidationError, field_validator, model_validator
 
 from coldseam import climate
 from coldseam.errors import InvalidSection
+from coldseam.schema.dynamics import DynamicsRequest, check_dynamics
 from coldseam.schema.section import (
     MAX_COORDINATE,
     Point,
@@ -121,6 +122,9 @@ class EvaluationRequest(_Strict):
     psi: PsiRequest | None = None
     condensation: CondensationRequest | None = None
     options: EngineOptions = Field(default_factory=EngineOptions)
+    dynamics: DynamicsRequest | None = Field(
+        default=None, description="Periodic (ISO 13786), time-constant and transient "
+        "results; materials then need density and specific heat.")
 
 
 def parse_request(data: Any) -> EvaluationRequest:
@@ -136,6 +140,7 @@ def parse_request(data: Any) -> EvaluationRequest:
     except ValidationError as exc:
         raise invalid_from_pydantic(exc) from None
     check_references(request.section, "/section")
+    check_dynamics(request.dynamics, request.section)
     return request
 
 
@@ -181,7 +186,18 @@ def request_digest(request: EvaluationRequest) -> str:
     from coldseam import ENGINE_VERSION
 
     canonical = json.dumps(
-        {"engine": ENGINE_VERSION, "request": request.model_dump(mode="json")},
+        {"engine": ENGINE_VERSION, "request": _no_negative_zero(request.model_dump(mode="json"))},
         sort_keys=True, separators=(",", ":"),
     )
     return hashlib.sha256(canonical.encode()).hexdigest()[:32]
+
+
+def _no_negative_zero(data: Any) -> Any:
+    """``data`` with every -0.0 made 0.0 (the same number, so the same id)."""
+    if isinstance(data, float):
+        return 0.0 if data == 0 else data
+    if isinstance(data, dict):
+        return {k: _no_negative_zero(v) for k, v in data.items()}
+    if isinstance(data, list | tuple):
+        return [_no_negative_zero(v) for v in data]
+    return data

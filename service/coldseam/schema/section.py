@@ -19,6 +19,12 @@ MIN_SURFACE_RESISTANCE = 1e-4
 #: Largest coordinate magnitude taken (1000 km in mm): far beyond any drawing, and small
 #: enough that the geometry library's arithmetic on it stays finite.
 MAX_COORDINATE = 1e9
+#: Most environments, boundary paths, probes and symmetry lines one section may have: far
+#: beyond any junction, and each costs geometry checks (more are refused at once, 422).
+MAX_ENVIRONMENTS = 20
+MAX_BOUNDARIES = 1_000
+MAX_PROBES = 200
+MAX_SYMMETRY_LINES = 20
 Coordinate = Annotated[float, Field(ge=-MAX_COORDINATE, le=MAX_COORDINATE)]
 Point = Annotated[
     tuple[Coordinate, Coordinate],
@@ -45,6 +51,11 @@ class Material(_Strict):
         "`conductivity` is not given.",
     )
     description: str | None = Field(default=None, max_length=400)
+    density: float | None = Field(default=None, gt=0, le=25_000,
+                                  description="Density ρ in kg/m³ (dynamic evaluations).")
+    specific_heat: float | None = Field(
+        default=None, gt=0, le=20_000,
+        description="Specific heat capacity c in J/(kg·K) (dynamic evaluations).")
     cavity: Cavity | None = Field(
         default=None,
         description="An air cavity instead of a solid: λeq is computed per region from its "
@@ -133,11 +144,11 @@ class Section(_Strict):
     unit: Literal["mm", "m"] = Field(description="Unit of every coordinate and length.")
     materials: list[Material] = Field(min_length=1)
     regions: list[Region] = Field(min_length=1)
-    environments: list[Environment] = Field(min_length=1)
-    boundaries: list[Boundary] = Field(min_length=1)
-    probes: list[Probe] = Field(default_factory=list)
+    environments: list[Environment] = Field(min_length=1, max_length=MAX_ENVIRONMENTS)
+    boundaries: list[Boundary] = Field(min_length=1, max_length=MAX_BOUNDARIES)
+    probes: list[Probe] = Field(default_factory=list, max_length=MAX_PROBES)
     symmetry_lines: list[list[Point]] = Field(
-        default_factory=list,
+        default_factory=list, max_length=MAX_SYMMETRY_LINES,
         description="Polylines along which the outline is a symmetry plane: adiabatic like any "
         "uncovered outline, but not a cut-off plane, so exempt from the cut-off checks.")
 

@@ -20,8 +20,8 @@ from coldseam import CAUTION, ENGINE_VERSION
 from coldseam.errors import LimitExceeded
 from coldseam.meshing.estimate import check_coarsest
 from coldseam.schema.evaluation import EvaluationRequest
-from coldseam.thermal import results, singular, units
-from coldseam.thermal.field import field_document
+from coldseam.thermal import dynamics_result, results, singular, units
+from coldseam.thermal.field import field_arrays, plain
 from coldseam.thermal.levels import (
     ISO_RULE,
     TARGETS,
@@ -44,7 +44,16 @@ Progress = Callable[[str, float], None]
 @dataclass
 class Evaluation:
     result: dict
-    field: dict
+    arrays: dict  # the field, its large members as numpy arrays (coldseam.thermal.field)
+
+    @property
+    def field(self) -> dict:
+        """The field document with plain lists, made on first use."""
+        if self._field is None:
+            self._field = plain(self.arrays)
+        return self._field
+
+    _field = None
 
 
 def evaluate(request: EvaluationRequest, progress: Progress | None = None) -> Evaluation:
@@ -56,13 +65,15 @@ def evaluate(request: EvaluationRequest, progress: Progress | None = None) -> Ev
     report("meshing", 0.05)
     check_coarsest(model.classified, request.options.max_nodes)
     meaning = singular.assess(model)
-    levels, solution, warnings = _certify(model, flanking, pair, report, meaning)
+    levels, solution, warnings, watch = _certify(model, flanking, pair, report, meaning)
     report("post-processing", 0.9)
     result = _result(model, flanking, pair, levels, solution, warnings)
+    if watch is not None:
+        result.update(_jsonable(dynamics_result.block(model, solution, watch)))
     if meaning.singular or meaning.frsi:
         result = _jsonable(_without_meaningless(result, meaning, levels, model))
     _release_solvers(solution)  # the field needs temperatures only: free the factorisations
-    field = field_document(model, solution)
+    field = field_arrays(model, solution)
     report("post-processing", 1.0)
     return Evaluation(result, field)
 
@@ -74,7 +85,8 @@ def _certify(model: ThermalModel, flanking: list[FlankingU], pair, report: Progr
     levels: list[LevelFigures] = []
     warnings: list[str] = []
     solution: LevelSolution | None = None
-    mesh, probes = first_level(model.classified)
+    watch = dynamics_result.Watch.start(model)  # None without a dynamics block
+    mesh, probes = first_level(model.classified, options.accuracy)
     for k in range(options.max_levels):
         if mesh.nodes > options.max_nodes:
             if solution is None:
@@ -89,15 +101,18 @@ def _certify(model: ThermalModel, flanking: list[FlankingU], pair, report: Progr
         if levels:
             compare(levels[-1], figures)
         levels.append(figures)
+        if watch is not None:
+            watch.add(model, solution, figures)  # the dynamic figures of this level
         report("solving", 0.1 + 0.8 * (1 - 0.6 ** (k + 1)))
-        if met(levels, options.accuracy, meaning.singular):
+        if met(levels, options.accuracy, meaning.singular) and (watch is None or watch.settled()):
             break
         if k + 1 >= options.max_levels:
             warnings.append(f"refinement stopped at the level limit ({options.max_levels}) "
                             "before the accuracy target was met")
             break
-        mesh = next_level(mesh, error_indicators(model, solution), order)
-    return levels, solution, warnings
+        eta = error_indicators(model, solution)
+        mesh = next_level(mesh, eta if watch is None else watch.indicators(eta), order)
+    return levels, solution, warnings, watch
 
 
 def _release_solvers(solution: LevelSolution) -> None:

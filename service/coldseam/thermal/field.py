@@ -1,5 +1,10 @@
 """The temperature field of the final level as compact arrays, for drawing.
 
+``field_arrays`` keeps its large members (points, triangles, temperature, heat_flux,
+material) as numpy arrays: they cross from a worker process to the server in one copy each
+and are stored as binary (coldseam.api.fieldpack); ``plain`` turns them into the JSON lists
+below, which is what ``field_document`` returns and what ``/field`` answers.
+
 {"unit": "m", "points": [[x, y]], "triangles": [[a, b, c]] (linear sub-triangles; for P2
  above DRAWN_TRIANGLES the vertex triangles), "temperature": [θ] per point (design run),
  "heat_flux": [|q| W/m²] per triangle, "material": [k] per triangle, "materials": [{"id", "conductivity"}],
@@ -33,7 +38,26 @@ P2_SPLIT = np.array([[0, 3, 5], [3, 1, 4], [5, 4, 2], [3, 4, 5]])
 DRAWN_TRIANGLES = 2_500_000
 
 
+#: The members ``field_arrays`` leaves as numpy arrays.
+ARRAYS = ("points", "triangles", "temperature", "heat_flux", "material")
+
+
 def field_document(model: ThermalModel, solution: LevelSolution) -> dict:
+    """The field with plain lists (JSON-able)."""
+    return plain(field_arrays(model, solution))
+
+
+def plain(field: dict) -> dict:
+    """``field`` with its array members as lists (lists are left as they are)."""
+    out = dict(field)
+    with _no_cycle_collection():
+        for name in ARRAYS:
+            if isinstance(out.get(name), np.ndarray):
+                out[name] = out[name].tolist()
+    return out
+
+
+def field_arrays(model: ThermalModel, solution: LevelSolution) -> dict:
     space, run = solution.space, solution.design
     theta = run.theta
     flux = np.linalg.norm(element_heat_flux(space, run.problem.conductivity, theta), axis=1)
@@ -45,15 +69,13 @@ def field_document(model: ThermalModel, solution: LevelSolution) -> dict:
         triangles, repeat = space.cell_dofs[:, :3], 1  # vertices are the first dofs
         points, theta = points[:space.mesh.nodes], theta[:space.mesh.nodes]
     part = model.classified.partition
-    with _no_cycle_collection():
-        points, cells = np.round(points, 7).tolist(), triangles.tolist()
     return {
         "unit": "m",
-        "points": points,
-        "triangles": cells,
-        "temperature": np.round(theta, 4).tolist(),
-        "heat_flux": np.round(np.repeat(flux, repeat), 3).tolist(),
-        "material": np.repeat(space.mesh.material, repeat).tolist(),
+        "points": np.round(points, 7),
+        "triangles": triangles.astype(np.int32),
+        "temperature": np.round(theta, 4),
+        "heat_flux": np.round(np.repeat(flux, repeat), 3),
+        "material": np.repeat(space.mesh.material, repeat).astype(np.int32),
         "materials": _materials(model),
         "cavities": [_cavity(c) for c in model.cavities],
         "pieces": [{"material": model.materials[k].id,

@@ -25,6 +25,7 @@ import numpy as np
 from coldseam.fem.adapt import longest_edge_first, refine_marked
 from coldseam.fem.mesh import Mesh, refine_uniform
 from coldseam.geometry.outline import Classified
+from coldseam.meshing.estimate import planned_nodes
 from coldseam.meshing.gmsh_mesher import triangulate
 from coldseam.meshing.sizes import plan
 
@@ -38,6 +39,15 @@ ROUNDOFF = 1e-10
 LEVEL_GROWTH = 1.6
 #: At most this many passes of three-side bisection per level (a size ratio of 2⁸ per level).
 MAX_PASSES = 8
+#: Level 0 is made coarser than the size plan where the plan's estimated nodes are above
+#: this, per accuracy target: the adaptive levels refine where the error is, and a fine
+#: start only adds nodes where none are needed. Measured on the templates, the thin bridge
+#: and ISO 10211 Case 2 (bench/plain.py; the certificate checked by bench/honesty.py): at
+#: the default target, a plan of 500-600 nodes (Case 2, the thin bridge) certified on
+#: 3 levels from ~250 nodes in 0.3-0.5x the time, while at 100 the singular corners
+#: (balcony, ground floor) needed more levels; the "iso" target (10x looser) starts from
+#: fewer still.
+FIRST_LEVEL_NODES = {"default": 150, "iso": 40}
 #: "About half the nodes" for the ISO comparison.
 HALF = 0.55
 
@@ -55,17 +65,31 @@ class LevelFigures:
     relative_change: float | None = None
     temperature_change: float | None = None
     design_temperature_change: float | None = None
+    #: Dynamic evaluations only (left out of ``as_dict`` otherwise): the slowest time
+    #: constant (h) and the largest relative change of the watched dynamic figures.
+    slowest_time_constant_hours: float | None = None
+    dynamic_change: float | None = None
     probe_change: float | None = None  # largest change of a probe temperature, K
     probe_values: tuple[float, ...] = ()  # probe temperatures, °C (not in the document)
 
     def as_dict(self) -> dict:
+        optional = {"slowest_time_constant_hours", "dynamic_change"}
         return {k: (None if v is None else round(float(v), 10) if isinstance(v, float) else v)
-                for k, v in self.__dict__.items() if k != "probe_values"}
+                for k, v in self.__dict__.items()
+                if k != "probe_values" and (v is not None or k not in optional)}
 
 
-def first_level(classified: Classified) -> tuple[Mesh, np.ndarray]:
-    """Level 0: gmsh's graded mesh, each triangle's longest side as its refinement edge."""
-    mesh, probes = triangulate(classified, plan(classified, 1.0))
+def first_factor(classified: Classified, accuracy: str = "default") -> float:
+    """The size factor of level 0: 1 (the size plan), or coarser when the plan's estimated
+    nodes are over FIRST_LEVEL_NODES for the accuracy asked, so that they are about that."""
+    estimated = max(planned_nodes(classified), 1)
+    return min(1.0, math.sqrt(FIRST_LEVEL_NODES[accuracy] / estimated))
+
+
+def first_level(classified: Classified, accuracy: str = "default") -> tuple[Mesh, np.ndarray]:
+    """Level 0: gmsh's graded mesh (see ``first_factor``), each triangle's longest side as its
+    refinement edge."""
+    mesh, probes = triangulate(classified, plan(classified, first_factor(classified, accuracy)))
     return longest_edge_first(mesh), probes
 
 
@@ -85,11 +109,15 @@ def refinement_depths(eta: np.ndarray, order: int, new_nodes: float) -> np.ndarr
     step = math.log(4.0 ** (order + 1))
     log_eta = np.log(np.maximum(eta, eta.max() * 1e-300))
 
+    nodes_added = (4.0 ** np.arange(MAX_PASSES + 1) - 1) / 2  # per depth, as 4^d − 1 over 2
+
     def depths(log_tau: float) -> np.ndarray:
         return np.clip(np.ceil((log_eta - log_tau) / step), 0, MAX_PASSES).astype(int)
 
     def added(log_tau: float) -> float:
-        return float(((4.0 ** depths(log_tau) - 1) / 2).sum())
+        d = np.ceil((log_eta - log_tau) / step)
+        np.clip(d, 0, MAX_PASSES, out=d)
+        return float(nodes_added[d.astype(np.intp)].sum())
 
     high = float(log_eta.max())  # nothing refined
     low = high - (MAX_PASSES + 1) * step - (log_eta.max() - log_eta.min())  # all, fully

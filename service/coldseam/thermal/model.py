@@ -21,6 +21,9 @@ class MaterialUse:
     id: str
     conductivity: tuple[float, float]  # [λx, λy] W/(m·K)
     source: str
+    density: float | None = None  # ρ, kg/m³
+    specific_heat: float | None = None  # c, J/(kg·K)
+    capacity_source: str = ""
     #: An air cavity (a cavity material, or one cavity's own λeq entry): no heat capacity.
     cavity: bool = False
 
@@ -73,7 +76,18 @@ def resolve_materials(section: Section) -> list[MaterialUse]:
         else:
             lx, ly, source = resolved[m.id]
             uses.append(MaterialUse(m.id, (float(lx), float(ly)), source))
+    _add_capacities(section, uses)
     return uses
+
+
+def _add_capacities(section: Section, uses: list[MaterialUse]) -> None:
+    """ρ, c and their source on every material that has them (dynamic evaluations)."""
+    from coldseam.materials import resolve_capacities
+
+    capacities = resolve_capacities(section)
+    for use in uses:
+        density, specific_heat, source = capacities[use.id]
+        use.density, use.specific_heat, use.capacity_source = density, specific_heat, source
 
 
 def prepare(request: EvaluationRequest) -> ThermalModel:

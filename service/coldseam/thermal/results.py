@@ -212,8 +212,12 @@ def materials_block(model) -> list[dict]:
     out = []
     for section_material, use in zip(model.section.materials, model.materials, strict=False):
         cavity = section_material.cavity is not None
-        out.append({"id": use.id, "conductivity": None if cavity else list(use.conductivity),
-                    "source": use.source, **({"cavity": True} if cavity else {})})
+        entry = {"id": use.id, "conductivity": None if cavity else list(use.conductivity),
+                 "source": use.source, **({"cavity": True} if cavity else {})}
+        if not cavity and use.density is not None and use.specific_heat is not None:
+            entry.update(density=use.density, specific_heat=use.specific_heat,
+                         capacity_source=use.capacity_source)
+        out.append(entry)
     return out
 
 

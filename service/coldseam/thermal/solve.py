@@ -116,10 +116,12 @@ def error_indicators(model: ThermalModel, solution: LevelSolution) -> np.ndarray
     runs = [solution.design]
     if solution.condensation is not None and solution.condensation is not solution.design:
         runs.append(solution.condensation)
-    weights = np.zeros(solution.mesh.elements)
-    for r in runs:
+    columns, boundary, conductance, goals = [], [], [], []
+    for r in runs:  # every run's unit solves and adjoint, indicated in one pass
         problem = r.problem
-        theta, boundary = r.unit, ambient
+        first = sum(c.shape[1] for c in columns)
+        columns.append(r.unit)
+        boundary.append(ambient)
         minimum = interior_minimum(model, r)
         dual = minimum is not None and problem.fixed_owner[minimum[1]] < 0
         if dual:
@@ -127,14 +129,19 @@ def error_indicators(model: ThermalModel, solution: LevelSolution) -> np.ndarray
             load[minimum[1]] = 1.0
             z = np.zeros((solution.space.dofs, 1))
             z[problem.free, 0] = problem.solver.solve(load[problem.free])
-            theta = np.hstack([theta, z])
-            boundary = np.hstack([ambient, np.zeros((len(ambient), 1))])
-        eta = residual_indicators(solution.space, problem.conductivity, problem.conductance,
-                                  theta, boundary)
-        primal = eta[:, :r.unit.shape[1]].sum(axis=1)
+            columns.append(z)
+            boundary.append(np.zeros((len(ambient), 1)))
+        width = r.unit.shape[1] + dual
+        conductance.append(np.repeat(problem.conductance[:, None], width, axis=1))
+        goals.append((first, r.unit.shape[1], dual))
+    eta = residual_indicators(solution.space, solution.design.problem.conductivity,
+                              np.hstack(conductance), np.hstack(columns), np.hstack(boundary))
+    weights = np.zeros(solution.mesh.elements)
+    for first, units, dual in goals:
+        primal = eta[:, first:first + units].sum(axis=1)
         weights += _normalised(primal)
         if dual:
-            weights += _normalised(np.sqrt(primal * eta[:, -1]))
+            weights += _normalised(np.sqrt(primal * eta[:, first + units]))
     return weights
 
 
