@@ -28,14 +28,13 @@ from coldseam.api.batch_store_pg import PgBatchTables
 from coldseam.api.store import (
     UNFINISHED,
     Record,
-    StoreFailure,
-    StoreUnavailable,
     _dumps,
     _record,
     pack_field,
     summarise,
 )
 from coldseam.api.stores import redact
+from coldseam.errors import StoreFailure, StoreUnavailable
 
 log = logging.getLogger(__name__)
 
