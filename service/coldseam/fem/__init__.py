@@ -1,4 +1,4 @@
-"""Finite elements for steady 2D conduction: meshes, P1/P2 spaces, assembly, solvers.
+"""Finite elements for 2D conduction (steady, harmonic and transient): meshes, P1/P2 spaces, assembly, solvers.
 
 Knows nothing of buildings: only triangles, conductivities and boundary conductances.
 """
