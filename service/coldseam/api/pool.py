@@ -13,8 +13,9 @@ import multiprocessing
 import queue
 import threading
 import time
+from concurrent.futures import ThreadPoolExecutor
 
-from coldseam.api.slot import STOP_GRACE, Job, WorkerSlot, failure
+from coldseam.api.slot import STOP_GRACE, Job, Outcome, WorkerSlot, failure
 
 log = logging.getLogger(__name__)
 
@@ -45,14 +46,18 @@ class WorkerPool:
         self._lock = threading.Lock()
         self._timeout = timeout
         self._threads: list[threading.Thread] = []
+        # One storing thread per worker: a finished outcome is stored (an fsync, the field
+        # packed, a batch item recorded) while the worker already runs the next job.
+        self._finishers = [ThreadPoolExecutor(1, thread_name_prefix=f"{slot.name}-store")
+                           for slot in self._slots]
         self._mean_seconds = 5.0
         self._prestart = prestart
         self.stopping = False
         self.completed = 0  # evaluations run to an outcome, for the health page and tests
 
     def start(self) -> None:
-        for slot in self._slots:
-            thread = threading.Thread(target=self._runner, args=(slot,), name=slot.name,
+        for slot, finisher in zip(self._slots, self._finishers, strict=True):
+            thread = threading.Thread(target=self._runner, args=(slot, finisher), name=slot.name,
                                       daemon=True)
             thread.start()
             self._threads.append(thread)
@@ -82,6 +87,8 @@ class WorkerPool:
             slot.interrupt()
         for thread in self._threads:
             thread.join(2 * STOP_GRACE)
+        for finisher in self._finishers:
+            finisher.shutdown(wait=True)  # every outcome received is stored before the end
         for slot in self._slots:
             slot.kill()
 
@@ -90,7 +97,7 @@ class WorkerPool:
         return [slot.process.pid if slot.process is not None else None
                 for slot in self._slots]
 
-    def _runner(self, slot: WorkerSlot) -> None:
+    def _runner(self, slot: WorkerSlot, finisher: ThreadPoolExecutor) -> None:
         if self._prestart:
             try:
                 slot.start()
@@ -102,10 +109,10 @@ class WorkerPool:
                 job.on_finish(job, failure("Interrupted", "the server stopped before this "
                                            "evaluation ran; send it again"))
                 continue
-            self._run(slot, job)
+            self._run(slot, job, finisher)
         slot.stop()
 
-    def _run(self, slot: WorkerSlot, job: Job) -> None:
+    def _run(self, slot: WorkerSlot, job: Job, finisher: ThreadPoolExecutor) -> None:
         started = time.monotonic()
         job.on_start(job)
         outcome = slot.run(job, self._timeout)
@@ -114,4 +121,11 @@ class WorkerPool:
                               "send it again")
         self._mean_seconds = 0.8 * self._mean_seconds + 0.2 * (time.monotonic() - started)
         self.completed += 1
+        finisher.submit(_finish, job, outcome)
+
+
+def _finish(job: Job, outcome: Outcome) -> None:
+    try:
         job.on_finish(job, outcome)
+    except Exception:  # noqa: BLE001 - logged; the storing thread goes on with the next
+        log.exception("the outcome of %s could not be handled", job.label or "an evaluation")
