@@ -99,3 +99,29 @@ def test_a_bad_schedule_is_answered_beside_the_form(server, page_factory):
     message.wait_for(timeout=10_000)
     assert "no 'id' column" in message.inner_text()
     assert "#/schedule" in page.url
+
+
+def test_earlier_batches_are_listed_newest_first_and_open_from_the_list(server, page_factory):
+    page = page_factory(1280)
+    page.goto(f"{server}/#/schedule")
+    page.get_by_test_id("batch-name").fill("Listed schedule")
+    page.get_by_test_id("schedule-csv").fill("id,template,length\nJ3 corners,wall_corner,7.5\n")
+    page.get_by_test_id("schedule-run").click()
+    page.get_by_test_id("batch").wait_for(timeout=30_000)
+    _wait_finished(page)
+    batch = _batch_of(server, page)
+    listed = api_json(f"{server}/api/v1/batches?limit=50")
+    page.get_by_test_id("nav-schedule").click()
+    rows = page.get_by_test_id("batch-row")
+    rows.first.wait_for(timeout=10_000)
+    assert rows.count() == min(listed["total"], 50)
+    newest = rows.first
+    assert newest.get_by_test_id("batch-link").inner_text() == "Listed schedule"
+    assert newest.get_by_test_id("batch-row-sum").inner_text() == shown(batch["sum_psi_l"], 2)
+    assert f"Earlier batches ({listed['total']})" in \
+        page.get_by_test_id("batch-list").inner_text()
+    shot(page, "schedule-list")
+    newest.get_by_test_id("batch-link").click()
+    page.get_by_test_id("batch").wait_for(timeout=10_000)
+    assert page.url.endswith(f"#/batches/{batch['id']}")
+    assert clean_problems(page) == []

@@ -1,11 +1,13 @@
 // The schedule view at #/schedule: a junction schedule pasted or uploaded as CSV, or a grid of
 // template parameter values, sent as one batch; the batch is then followed at #/batches/<id>.
 
-import { ApiError, listTemplates, startBatch } from "../api.js";
+import { ApiError, call, listTemplates, startBatch } from "../api.js";
 import { h, replace } from "../dom.js";
-import { gridDocument, gridSize, parseValues } from "../lib/schedule.js";
+import { fixed } from "../lib/format.js";
+import { countsLine, gridDocument, gridSize, parseValues } from "../lib/schedule.js";
 import { humanise } from "./inputs.js";
 import { problemList, showProblems } from "./problems.js";
+import { scroller } from "./tables.js";
 
 const EXAMPLE = `id,template,length,insulation_thickness,connection
 J2 first-floor slab edge,floor_slab,64,160,
@@ -14,6 +16,7 @@ J4 roof terrace balcony,balcony,12,,thermal_break`;
 
 /** Render the schedule form into `root`. */
 export async function scheduleView(root) {
+  const controller = new AbortController();
   const problems = problemList();
   const name = h("input", { id: "batch-name", type: "text", testid: "batch-name", placeholder: "e.g. Harrowgate Lane schedule" });
   let templates = [];
@@ -38,8 +41,39 @@ export async function scheduleView(root) {
       h("p", { class: "hint" }, "Every junction of a building, or every option of a detail, evaluated as one batch: ψ, ψ·l, fRsi, verdicts and Σ ψ·l."),
       h("div", { class: "field" }, h("label", { for: "batch-name" }, "Name of the batch (optional)"), name),
       problems),
-    csvCard(send), gridCard(templates, send)));
-  return () => {};
+    csvCard(send), gridCard(templates, send), earlierCard(controller.signal)));
+  return () => controller.abort();
+}
+
+/** The key's earlier batches, newest first, each a link to its page at #/batches/<id>. */
+function earlierCard(signal) {
+  const body = h("div", {}, h("p", { class: "placeholder" }, "Loading the list…"));
+  const section = h("section", { class: "card", testid: "batch-list" },
+    h("h2", { class: "card-title" }, "Earlier batches"), body);
+  call("batches?limit=50", { signal }).then(({ data }) => {
+    const items = data?.items || [];
+    replace(section, h("h2", { class: "card-title" }, `Earlier batches (${data?.total ?? items.length})`),
+      items.length ? scroller(batchTable(items))
+        : h("p", { class: "muted" }, "No batches yet with this access key."));
+  }).catch((err) => {
+    if (err.name === "AbortError") return;
+    if (!(err instanceof ApiError)) throw err;
+    replace(body, h("p", { class: "muted" }, `The list is not available: ${err.message}`));
+  });
+  return section;
+}
+
+function batchTable(items) {
+  const head = ["Name", "Date (UTC)", "Junctions", "Σ ψ·l W/K", "Status"];
+  return h("table", { class: "figures batch-list" },
+    h("thead", {}, h("tr", {}, head.map((c, i) => h("th", { scope: "col", class: i > 1 ? "num" : "" }, c)))),
+    h("tbody", {}, items.map((batch) => h("tr", { testid: "batch-row" },
+      h("th", { scope: "row" }, h("a", { href: `#/batches/${encodeURIComponent(batch.id)}`, testid: "batch-link" },
+        batch.name || `Batch ${batch.id.slice(0, 8)}`)),
+      h("td", {}, String(batch.created_at || "").replace("T", " ").replace(/(\.\d+)?Z$/, "")),
+      h("td", { class: "num", title: countsLine(batch) }, String(batch.total)),
+      h("td", { class: "num", testid: "batch-row-sum" }, fixed(batch.sum_psi_l, 2)),
+      h("td", { class: "num" }, batch.status)))));
 }
 
 function csvCard(send) {

@@ -16,8 +16,9 @@ from coldseam.schema.evaluation import EvaluationRequest, parse_request, request
 from coldseam.settings import Settings
 
 
-def prepare(item: ItemSpec, settings: Settings) -> NewItem:
-    """The stored row of ``item``: its request text and evaluation id, or its error."""
+def prepare(item: ItemSpec, settings: Settings) -> tuple[NewItem, EvaluationRequest | None]:
+    """The stored row of ``item`` (its request text and evaluation id, or its error) and its
+    parsed request (None when it failed)."""
     try:
         text = request_text(item)
         parsed = checked(text, settings)
@@ -25,9 +26,9 @@ def prepare(item: ItemSpec, settings: Settings) -> NewItem:
         error = {"kind": type(exc).__name__, "message": exc.message,
                  "field": _within(item, exc.field)}
         return NewItem(item.item_id, item.template, item.parameters, item.length, None, None,
-                       error)
+                       error), None
     return NewItem(item.item_id, item.template, item.parameters, item.length, text,
-                   request_digest(parsed))
+                   request_digest(parsed)), parsed
 
 
 def request_text(item: ItemSpec) -> str:

@@ -26,10 +26,14 @@ from coldseam.api.pool import QueueFull
 from coldseam.api.store import StoreUnavailable, storage_key
 from coldseam.batches.spec import BatchSpec
 from coldseam.errors import ColdseamError
+from coldseam.schema.evaluation import EvaluationRequest
 from coldseam.settings import Settings
 
 log = logging.getLogger(__name__)
 
+#: Parsed requests kept from a batch's creation for its items' hand-off (beyond this many
+#: waiting, an item's stored text is parsed again when its turn comes, as after a restart).
+KEPT_REQUESTS = 20_000
 RETRY_SECONDS = 0.5  # wait after the pool refused an item, unless an item finishes first
 STORE_RETRY = 1.0  # s between two attempts while a server store (PostgreSQL) is unreachable
 CANCELLED = {"kind": "Cancelled", "message": "the batch was cancelled before this item ran",
@@ -45,6 +49,8 @@ class BatchRunner:
         self._fixed_in_flight = in_flight
         self._lines: OrderedDict[str, deque[int]] = OrderedDict()
         self._in_flight = 0
+        #: (batch key, position) -> the item's parsed request and evaluation id, from create.
+        self._prepared: dict[tuple[str, int], tuple[EvaluationRequest, str | None]] = {}
         self._cond = threading.Condition()
         self._stopping = False
         self._thread = threading.Thread(target=self._loop, name="coldseam-batches",
@@ -79,12 +85,15 @@ class BatchRunner:
         """Store a new batch of ``owner`` and line its items up; its id."""
         batch_id = secrets.token_hex(16)
         key = storage_key(owner, batch_id)
-        rows = [prepare(item, self.settings) for item in spec.items]
+        prepared = [prepare(item, self.settings) for item in spec.items]
+        rows = [row for row, _ in prepared]
         self.store.create_batch(key, batch_id, owner, spec.name, spec.summary(), rows)
         waiting = [n for n, row in enumerate(rows) if row.error is None]
         with self._cond:
             if waiting:
                 self._lines[key] = deque(waiting)
+            for n in waiting[:max(0, KEPT_REQUESTS - len(self._prepared))]:
+                self._prepared[key, n] = (prepared[n][1], rows[n].evaluation_id)
             self._cond.notify_all()
         log.info("batch %s of %d items (%d waiting)", batch_id, len(rows), len(waiting))
         return batch_id
@@ -92,7 +101,8 @@ class BatchRunner:
     def cancel(self, key: str) -> int:
         """Fail the items of a batch not yet handed to the pool; how many."""
         with self._cond:
-            self._lines.pop(key, None)
+            for position in self._lines.pop(key, ()):
+                self._prepared.pop((key, position), None)
         return self.store.cancel_batch(key, CANCELLED)
 
     def waiting(self) -> int:
@@ -150,20 +160,28 @@ class BatchRunner:
     def _submit(self, key: str, position: int) -> bool:
         """Hand one item to the pool; True when the pool refused it."""
         found = self.store.item_request(key, position)
+        with self._cond:
+            kept = self._prepared.pop((key, position), None)
         if found is None:  # cancelled meanwhile
             self._release()
             return False
         owner, text = found
-        try:
-            parsed = checked(text, self.settings)
-        except ColdseamError as exc:  # a limit lowered since the batch was made
-            self._item_failed(key, position, {"kind": type(exc).__name__,
-                                              "message": exc.message, "field": exc.field})
-            return False
+        if kept is not None:  # parsed and checked at creation, in this process
+            parsed, evaluation_id = kept
+        else:
+            try:
+                parsed, evaluation_id = checked(text, self.settings), None
+            except ColdseamError as exc:  # a limit lowered since the batch was made
+                self._item_failed(key, position, {"kind": type(exc).__name__,
+                                                  "message": exc.message, "field": exc.field})
+                return False
         self.store.mark_item_running(key, position)
         try:
-            submitted = self.evaluations.submit(owner, parsed, text, f"batch-{key[:8]}")
+            submitted = self.evaluations.submit(owner, parsed, text, f"batch-{key[:8]}",
+                                                evaluation_id)
         except QueueFull:
+            with self._cond:
+                self._prepared[key, position] = (parsed, evaluation_id)
             return True
         if submitted.id != self.store.item_evaluation_id(key, position):
             self.store.set_item_evaluation(key, position, submitted.id)
@@ -191,9 +209,12 @@ class BatchRunner:
             self.store.requeue_item(key, position)  # the server is stopping: resumed
         elif outcome is not None and not outcome.ok:
             self.store.finish_item(key, position, None, outcome.error)
-        else:
-            record = self.store.get(evaluation_key)
-            self.store.finish_item(key, position, figures_of(record.result or {}), None)
+        else:  # the result just stored, or one stored earlier (read back)
+            result = outcome.result if outcome is not None else None
+            if result is None:
+                record = self.store.get(evaluation_key)
+                result = record.result if record is not None else None
+            self.store.finish_item(key, position, figures_of(result or {}), None)
 
     def _until_available(self, action: Any, *args: Any) -> None:
         """``action(*args)``, tried again while the store is unreachable (a server store

@@ -13,6 +13,7 @@ error), so that reading a batch never needs the evaluation rows.
 from __future__ import annotations
 
 import json
+import numbers
 import time
 from dataclasses import dataclass
 from typing import Any
@@ -198,8 +199,10 @@ class BatchTables:
         return (row[0], row[1]) if row else None
 
     def mark_item_running(self, key: str, position: int) -> None:
+        # Not durable: a restart puts running items back in line anyway.
         self._write("UPDATE batch_items SET status='running', updated_at=? WHERE batch_key=? "
-                    "AND position=? AND status='queued'", (time.time(), key, position))
+                    "AND position=? AND status='queued'", (time.time(), key, position),
+                    durable=False)
 
     def item_evaluation_id(self, key: str, position: int) -> str | None:
         with self._lock:
@@ -220,7 +223,11 @@ class BatchTables:
 
     def finish_item(self, key: str, position: int, figures: Figures | None,
                     error: dict[str, Any] | None) -> None:
-        """Store how an item ended: its figures when done, its error when it failed."""
+        """Store how an item ended: its figures when done, its error when it failed.
+
+        A done item's row skips the fsync: its evaluation's result was stored durably just
+        before, so an item a power cut takes back to queued or running is found done at once
+        when the restarted server resumes it."""
         if error is not None or figures is None:
             self._write("UPDATE batch_items SET status='failed', error=?, updated_at=? "
                         "WHERE batch_key=? AND position=?",
@@ -236,7 +243,7 @@ class BatchTables:
             "UPDATE batch_items SET status='done', psi=?, psi_l=?, f_rsi=?, "
             "min_temperature=?, l2d=?, verdict=?, error=NULL, updated_at=? WHERE batch_key=? AND position=?",
             (figures.psi, psi_l, figures.fRsi, figures.min_temperature, figures.L2D,
-             figures.verdict, time.time(), key, position))
+             figures.verdict, time.time(), key, position), durable=False)
 
     def cancel_batch(self, key: str, error: dict[str, Any]) -> int:
         """Mark a batch cancelled and its queued items failed with ``error``; how many."""
@@ -278,7 +285,8 @@ def figures_of(result: dict[str, Any]) -> Figures:
 
 
 def _number(value: Any) -> float | None:
-    return float(value) if isinstance(value, int | float) else None
+    # numbers.Real: a result handed over in process may hold numpy scalars (stored as numbers)
+    return float(value) if isinstance(value, numbers.Real) else None
 
 
 def _item(row: tuple) -> ItemRecord:

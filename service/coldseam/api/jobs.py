@@ -68,12 +68,13 @@ class Evaluations:
         self._lock = threading.Lock()
 
     def submit(self, owner: str, request: EvaluationRequest, request_text: str,
-               request_id: str = "") -> Submitted:
+               request_id: str = "", evaluation_id: str | None = None) -> Submitted:
         """Start evaluating ``request`` unless its result is stored or it is in flight.
+        ``evaluation_id`` is ``request_digest(request)`` where the caller has it already.
 
         Raises QueueFull when no worker is free and the queue is full.
         """
-        evaluation_id = request_digest(request)
+        evaluation_id = evaluation_id or request_digest(request)
         key = storage_key(owner, evaluation_id)
         with self._lock:
             if key in self._live:
