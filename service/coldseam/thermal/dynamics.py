@@ -41,8 +41,8 @@ DYNAMIC_TARGET = 5e-3
 #: A transient run refines for the harmonic of this many time steps per period.
 TRANSIENT_PERIODS = 4
 #: Periodic requests start from level 0 refined so that no triangle side exceeds
-#: PENETRATION_SIZE·δ + PENETRATION_GROWTH·d, δ = √(λT/(πρc)) the periodic penetration depth
-#: of its material (ISO 13786) and d its distance from the exposed surfaces (the wave is
+#: PENETRATION_SIZE·δ + PENETRATION_GROWTH·d, δ = √(λT/(πρc)) the periodic penetration
+#: depth of its material (ISO 13786) and d its distance from the exposed surfaces (the wave is
 #: damped as e^(−d/δ) away from them, so the cap relaxes with depth): the damped wave through
 #: massive layers is then resolved from the start, and the periodic figures settle within about
 #: the levels of the steady certificate. Measured with bench/dynamics.py and the level counts
