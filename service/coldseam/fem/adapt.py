@@ -11,9 +11,12 @@ for probes stay where they are; boundaries are straight, so midpoints lie on the
 
     longest_edge_first(mesh) -> Mesh       # initial refinement edges: the longest sides
     refine_marked(mesh, marked) -> (Mesh, parent)   # marked: (E,) bool; parent: (E',)
+    refine_to_sizes(mesh, caps) -> Mesh   # caps(mesh): (E,) largest allowed side, metres
 """
 
 from __future__ import annotations
+
+from collections.abc import Callable
 
 import numpy as np
 
@@ -29,6 +32,24 @@ def longest_edge_first(mesh: Mesh) -> Mesh:
     order = (shift[:, None] + np.arange(3)[None]) % 3
     triangles = np.take_along_axis(mesh.triangles, order, axis=1)
     return Mesh(mesh.points, triangles, mesh.material, mesh.boundary_edges, mesh.boundary_group)
+
+
+def longest_sides(mesh: Mesh) -> np.ndarray:
+    """The longest side of every triangle (E,), metres."""
+    p = mesh.points[mesh.triangles]
+    return np.max([np.linalg.norm(p[:, (k + 1) % 3] - p[:, k], axis=1) for k in range(3)], axis=0)
+
+
+def refine_to_sizes(mesh: Mesh, caps: Callable[[Mesh], np.ndarray], passes: int = 8) -> Mesh:
+    """The mesh refined (``refine_marked``, so still nested and of bounded shape) until no
+    triangle's longest side exceeds its cap ``caps(mesh)`` (E,), or after ``passes`` passes
+    (each pass halves the sides of the triangles over their caps)."""
+    for _ in range(passes):
+        marked = longest_sides(mesh) > caps(mesh)
+        if not marked.any():
+            break
+        mesh, _ = refine_marked(mesh, marked)
+    return mesh
 
 
 def closure(tri_edges: np.ndarray, marked_edges: np.ndarray) -> np.ndarray:

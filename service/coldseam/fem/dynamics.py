@@ -21,9 +21,12 @@ from coldseam.fem.system import ConductionProblem
 
 log = logging.getLogger(__name__)
 HARMONIC_TOLERANCE = 1e-12
-#: Below this many unknowns SuperLU's complex factorisation is the faster (measured: 3k P2
-#: dofs 19 ms against 27 ms for the preconditioned GMRES); at 34k it took 90 s against 3 s.
-COMPLEX_DIRECT_LIMIT = 8_000
+#: Up to this many unknowns SuperLU's complex factorisation (symmetric mode, MMD on AᵀA + A) is
+#: the faster. Measured on the balcony and ground-floor templates, two unit columns: 3k P2 dofs
+#: 19 ms against 27 ms for the preconditioned GMRES, 11k 34 against 64 ms, 23k 0.6 against
+#: 5.9 s, 32k 0.19 against 0.33 s; at 92k 8.6 against 5.8 s. (The 90 s once seen at 34k was
+#: a factorisation without the symmetric mode.)
+COMPLEX_DIRECT_LIMIT = 40_000
 
 
 class DynamicProblem:

@@ -126,12 +126,18 @@ class MaterialChoice:
     conductivity: float
     library: str | None = None
     name: str = ""
+    #: With a conductivity given directly: kg/m³ and J/(kg·K), for the dynamic results.
+    density: float | None = None
+    specific_heat: float | None = None
 
     def entry(self, role: str) -> dict[str, Any]:
         """The section's material entry for this choice under the id ``role``."""
         if self.library is not None:
             return {"id": role, "library": self.library, "description": self.name}
-        return {"id": role, "conductivity": self.conductivity}
+        out: dict[str, Any] = {"id": role, "conductivity": self.conductivity}
+        if self.density is not None and self.specific_heat is not None:
+            out.update(density=self.density, specific_heat=self.specific_heat)
+        return out
 
 
 def invalid(name: str, message: str) -> InvalidSection:

@@ -40,6 +40,15 @@ HOUR = 3600.0
 DYNAMIC_TARGET = 5e-3
 #: A transient run refines for the harmonic of this many time steps per period.
 TRANSIENT_PERIODS = 4
+#: Periodic requests start from level 0 refined so that no triangle side exceeds
+#: PENETRATION_SIZE·δ + PENETRATION_GROWTH·d, δ = √(λT/(πρc)) the periodic penetration
+#: depth of its material (ISO 13786) and d its distance from the exposed surfaces (the wave is
+#: damped as e^(−d/δ) away from them, so the cap relaxes with depth): the damped wave through
+#: massive layers is then resolved from the start, and the periodic figures settle within about
+#: the levels of the steady certificate. Measured with bench/dynamics.py and the level counts
+#: of the templates (see bench/notes.md).
+PENETRATION_SIZE = 1.0
+PENETRATION_GROWTH = 0.5
 
 
 def volumetric_capacities(model: ThermalModel) -> np.ndarray:
@@ -68,6 +77,35 @@ def dynamic_problem(model: ThermalModel, run: Run) -> DynamicProblem:
     return dyn
 
 
+def penetration_depths(model: ThermalModel, period_seconds: float) -> np.ndarray:
+    """δ = √(λT/(πρc)) per material (m), with the smaller principal λ; ∞ without capacity
+    (an air cavity)."""
+    rho_c = volumetric_capacities(model)
+    conductivity = np.min(np.reshape(model.conductivities, (len(rho_c), -1)), axis=1)
+    out = np.full(len(rho_c), np.inf)
+    stores = rho_c > 0
+    out[stores] = np.sqrt(conductivity[stores] * period_seconds / (math.pi * rho_c[stores]))
+    return out
+
+
+def penetration_sizes(model: ThermalModel, period_seconds: float):
+    """caps(mesh) -> (E,) the largest side allowed in each triangle for a periodic solve of
+    that period (see PENETRATION_SIZE), for ``coldseam.fem.adapt.refine_to_sizes``."""
+    delta = penetration_depths(model, period_seconds)
+
+    def caps(mesh) -> np.ndarray:
+        from scipy.spatial import cKDTree
+
+        ends = mesh.points[mesh.boundary_edges]  # exposed sides: ends and midpoints sampled
+        if len(ends) == 0:
+            return np.full(mesh.elements, np.inf)
+        tree = cKDTree(np.vstack([ends[:, 0], ends[:, 1], 0.5 * (ends[:, 0] + ends[:, 1])]))
+        depth, _ = tree.query(mesh.points[mesh.triangles].mean(axis=1))
+        return PENETRATION_SIZE * delta[mesh.material] + PENETRATION_GROWTH * depth
+
+    return caps
+
+
 @dataclass
 class LevelDynamics:
     """Dynamic figures of one level: periodic complex flows and time constants."""
@@ -77,7 +115,21 @@ class LevelDynamics:
     time_constants: np.ndarray  # s, longest first
     watched: dict[str, float] = field(default_factory=dict)  # what the certificate compares
     transient: dict | None = None  # the transient block of this level (design run)
-    indicators: np.ndarray | None = None  # (E,) where to refine for the dynamic results
+    #: The harmonic fields of this level for its refinement indicators, kept until asked:
+    #: the final level is never refined, so its indicators are never computed.
+    _fields: tuple | None = None
+
+    def indicators(self) -> np.ndarray | None:
+        """(E,) where to refine for the dynamic results (``_indicators``); the fields are
+        dropped once used."""
+        if self._fields is None:
+            return None
+        dyn, fields = self._fields
+        self._fields = None
+        return _indicators(dyn, fields)
+
+    def forget_fields(self) -> None:
+        self._fields = None
 
 
 def level_dynamics(model: ThermalModel, solution: LevelSolution) -> LevelDynamics:
@@ -105,7 +157,7 @@ def level_dynamics(model: ThermalModel, solution: LevelSolution) -> LevelDynamic
                                                   request.transient.time_step_hours * HOUR),
                        fields)
     level = LevelDynamics(period, flows, taus, watched, series)
-    level.indicators = _indicators(dyn, fields)
+    level._fields = (dyn, fields) if fields else None
     return level
 
 

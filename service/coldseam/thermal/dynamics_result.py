@@ -5,8 +5,10 @@ the `dynamics` result block of the final level."""
 from __future__ import annotations
 
 import numpy as np
-from threadpoolctl import threadpool_limits
+from threadpoolctl import ThreadpoolController
 
+from coldseam.fem.adapt import refine_to_sizes
+from coldseam.fem.mesh import Mesh
 from coldseam.thermal.dynamics import (
     DYNAMIC_TARGET,
     HOUR,
@@ -14,6 +16,7 @@ from coldseam.thermal.dynamics import (
     dynamic_change,
     dynamic_problem,
     level_dynamics,
+    penetration_sizes,
     periodic_block,
     volumetric_capacities,
 )
@@ -21,6 +24,18 @@ from coldseam.thermal.levels import LevelFigures
 from coldseam.thermal.model import ThermalModel
 from coldseam.thermal.solve import LevelSolution
 from coldseam.thermal.transient import transient_block
+
+
+_CONTROLLER: ThreadpoolController | None = None
+
+
+def one_blas_thread():
+    """A context with one BLAS thread. The controller (which finds the loaded BLAS libraries,
+    ~2 ms each time) is made once per process."""
+    global _CONTROLLER
+    if _CONTROLLER is None:
+        _CONTROLLER = ThreadpoolController()
+    return _CONTROLLER.limit(limits=1, user_api="blas")
 
 
 class Watch:
@@ -39,18 +54,28 @@ class Watch:
         return cls()
 
     def add(self, model: ThermalModel, solution: LevelSolution, figures: LevelFigures) -> None:
-        with threadpool_limits(1, user_api="blas"):  # small products: threads only spin
+        with one_blas_thread():  # small products: threads only spin
             current = level_dynamics(model, solution)
         figures.slowest_time_constant_hours = float(current.time_constants[0] / HOUR)
         if self.levels:
             self.change = dynamic_change(self.levels[-1], current)
             self.changes.append(self.change)
             figures.dynamic_change = self.change
+            self.levels[-1].forget_fields()  # a level is refined once, or never
         self.levels.append(current)
+
+    @staticmethod
+    def first_mesh(model: ThermalModel, mesh: Mesh) -> Mesh:
+        """Level 0 of a periodic request: refined where its triangles are coarse against the
+        periodic penetration depth (``coldseam.thermal.dynamics.penetration_sizes``)."""
+        periodic = model.request.dynamics.periodic
+        if periodic is None:
+            return mesh
+        return refine_to_sizes(mesh, penetration_sizes(model, periodic.period_hours * HOUR))
 
     def indicators(self, steady: np.ndarray) -> np.ndarray:
         """The steady refinement weights plus those of the dynamic fields of the last level."""
-        extra = self.levels[-1].indicators
+        extra = self.levels[-1].indicators()
         return steady if extra is None else steady + extra
 
     def settled(self) -> bool:
@@ -61,7 +86,7 @@ class Watch:
 
 def block(model: ThermalModel, solution: LevelSolution, watch: Watch) -> dict:
     """{"dynamics": {...}} of the final level (the watch's last entry)."""
-    with threadpool_limits(1, user_api="blas"):
+    with one_blas_thread():
         return _block(model, solution, watch)
 
 

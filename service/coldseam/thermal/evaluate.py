@@ -87,6 +87,8 @@ def _certify(model: ThermalModel, flanking: list[FlankingU], pair, report: Progr
     solution: LevelSolution | None = None
     watch = dynamics_result.Watch.start(model)  # None without a dynamics block
     mesh, probes = first_level(model.classified, options.accuracy)
+    if watch is not None:
+        mesh = watch.first_mesh(model, mesh)  # finer where the periodic wave needs it
     for k in range(options.max_levels):
         if mesh.nodes > options.max_nodes:
             if solution is None:
