@@ -135,13 +135,17 @@ class LevelDynamics:
 def level_dynamics(model: ThermalModel, solution: LevelSolution) -> LevelDynamics:
     request = model.request.dynamics
     dyn = dynamic_problem(model, solution.design)
+    # The time constants are solved (and watched by the certificate) where they are reported:
+    # asked for, or the only dynamic figure of the request.
+    wanted = request.time_constants is not None or (request.periodic is None
+                                                    and request.transient is None)
     count = request.time_constants.count if request.time_constants else 1
-    taus = dyn.time_constants(count)
+    taus = dyn.time_constants(count) if wanted else np.full(count, np.nan)
     flows, period, fields = None, None, []
     if request.periodic is not None:
         period = request.periodic.period_hours
         flows = harmonic_flows(model, dyn, 2 * math.pi / (period * HOUR), fields)
-    watched = {"time_constant": float(taus[0])}
+    watched = {"time_constant": float(taus[0])} if wanted else {}
     if flows is not None:
         for (a, b), value in _pairs(model, flows).items():
             watched[f"coupling {a}|{b}"] = abs(value)

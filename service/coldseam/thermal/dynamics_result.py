@@ -25,7 +25,6 @@ from coldseam.thermal.model import ThermalModel
 from coldseam.thermal.solve import LevelSolution
 from coldseam.thermal.transient import transient_block
 
-
 _CONTROLLER: ThreadpoolController | None = None
 
 
@@ -56,7 +55,8 @@ class Watch:
     def add(self, model: ThermalModel, solution: LevelSolution, figures: LevelFigures) -> None:
         with one_blas_thread():  # small products: threads only spin
             current = level_dynamics(model, solution)
-        figures.slowest_time_constant_hours = float(current.time_constants[0] / HOUR)
+        if "time_constant" in current.watched:
+            figures.slowest_time_constant_hours = float(current.time_constants[0] / HOUR)
         if self.levels:
             self.change = dynamic_change(self.levels[-1], current)
             self.changes.append(self.change)
