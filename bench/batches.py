@@ -96,9 +96,9 @@ def finish(runner, store, spec, samples: list[int] | None = None) -> dict:
 
 
 def running(evaluations) -> int:
-    """Evaluations a worker has started and not finished."""
-    with evaluations._lock:
-        return sum(1 for live in evaluations._live.values() if live.status == "running")
+    """Workers evaluating right now (an outcome being stored no longer counts: the worker
+    is free for the next item by then)."""
+    return evaluations.pool.running
 
 
 def main() -> int:

@@ -114,3 +114,14 @@ def test_warm_up_evaluates_a_valid_junction_and_never_raises():
         raise RuntimeError("broken engine")
 
     warm_up(failing)  # logged, not raised
+
+
+def test_the_pool_counts_the_workers_evaluating_and_not_the_outcomes_being_stored(client):
+    from coldseam.schema.evaluation import parse_request
+
+    pool = client.app.state.evaluations.pool
+    assert pool.running == 0
+    submitted = client.app.state.evaluations.submit("", parse_request(fake("sleep=1.0")), "{}")
+    _until(lambda: pool.running == 1)
+    assert submitted.done.result(timeout=20).ok
+    _until(lambda: pool.running == 0)

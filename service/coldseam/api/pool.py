@@ -54,6 +54,7 @@ class WorkerPool:
         self._prestart = prestart
         self.stopping = False
         self.completed = 0  # evaluations run to an outcome, for the health page and tests
+        self.running = 0  # workers evaluating right now (not counting outcomes being stored)
 
     def start(self) -> None:
         for slot, finisher in zip(self._slots, self._finishers, strict=True):
@@ -115,7 +116,13 @@ class WorkerPool:
     def _run(self, slot: WorkerSlot, job: Job, finisher: ThreadPoolExecutor) -> None:
         started = time.monotonic()
         job.on_start(job)
-        outcome = slot.run(job, self._timeout)
+        with self._lock:
+            self.running += 1
+        try:
+            outcome = slot.run(job, self._timeout)
+        finally:
+            with self._lock:
+                self.running -= 1
         if self.stopping and not outcome.ok and outcome.error["kind"] == "WorkerCrashed":
             outcome = failure("Interrupted", "the server stopped during this evaluation; "
                               "send it again")
