@@ -117,6 +117,7 @@ class RingIndex:
     those of ``_segments_through``, so the outcome is the same as looking at every segment."""
 
     REBUILD = 256  # points added before the k-d tree is rebuilt
+    TREE_POINTS = 512
 
     def __init__(self, partition: Partition) -> None:
         self.partition = partition
@@ -143,10 +144,15 @@ class RingIndex:
         self.reach = 0.0  # farthest an inserted point lies from its original segment
 
     def _tree_points(self) -> None:
+        """A k-d tree of the points, once there are TREE_POINTS (fewer are all looked at,
+        which spares a small section the import of scipy.spatial)."""
+        if len(self.partition.points) < self.TREE_POINTS:
+            self.indexed, self.points_tree = 0, None
+            return
         from scipy.spatial import cKDTree
 
         self.indexed = len(self.partition.points)
-        self.points_tree = cKDTree(self.partition.points) if self.indexed else None
+        self.points_tree = cKDTree(self.partition.points)
 
     def _near_point(self, p: np.ndarray, tol: float) -> int | None:
         pts = self.partition.points

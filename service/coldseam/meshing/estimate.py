@@ -43,6 +43,7 @@ DENSITY = 2 / np.sqrt(3) * 1.1
 #: the plan's growth rate, and over how many nearest boundary nodes that is looked for.
 BOUNDARY_GROWTH = 0.8
 NEAREST_BOUNDARY = 8
+BRUTE_FORCE_NODES = 32
 #: Faces with at least this many boundary nodes get the bound of the sizes gmsh extends from
 #: their boundary; at most this many of their nodes are triangulated for it.
 MANY_NODES = 16
@@ -141,7 +142,11 @@ def _boundary_sizes(nodes: np.ndarray, spacing: np.ndarray, xy: np.ndarray) -> n
 def _grown_sizes(nodes: np.ndarray, spacing: np.ndarray, xy: np.ndarray,
                  growth: float) -> np.ndarray:
     """min over the NEAREST_BOUNDARY nearest boundary nodes of sᵢ + growth·|x − xᵢ|: how far
-    the spacing of a finely divided boundary reaches into the face."""
+    the spacing of a finely divided boundary reaches into the face. Few nodes: all of them
+    (which spares a small section the import of scipy.spatial)."""
+    if len(nodes) <= BRUTE_FORCE_NODES:
+        dist = np.linalg.norm(xy[:, None, :] - nodes[None, :, :], axis=2)
+        return np.min(spacing[None, :] + growth * dist, axis=1)
     from scipy.spatial import cKDTree
 
     k = min(NEAREST_BOUNDARY, len(nodes))
