@@ -125,7 +125,7 @@ def test_the_limit_is_checked_on_the_mesh_level_0_really_makes(monkeypatch):
     factor = first_factor(classified)
     estimated, actual = _estimate_and_mesh(classified, factor)
     assert LOW * actual <= estimated <= HIGH * actual, (estimated, actual)
-    assert check_coarsest(classified, 400_000, factor) == estimated
+    check_coarsest(classified, 400_000, factor)  # not refused at the default limit
     _no_meshing(monkeypatch)
     with pytest.raises(LimitExceeded) as refused:
         evaluate(parse_request(request_of(circle_in_wall(1000), max_nodes=int(0.9 * actual))))

@@ -17,7 +17,7 @@ The integral is sampled on cells split wherever they are coarse for the size the
 narrow bands of fine elements along such boundaries are counted. Measured against gmsh on the
 templates, the ISO 10211 cases, thin layers and circles of 50 to 1 000 vertices, from the
 coarsest level-0 factor to √2 (``tests/robustness/test_node_estimate.py``), the estimate is
-0.95-1.4 times the real count on meshes of more than a few hundred nodes. It serves to refuse a
+0.95-1.5 times the real count on meshes of more than a few hundred nodes. It serves to refuse a
 request whose first mesh would be over the node limit without spending the time and memory of
 meshing it; every mesh made is still checked itself.
 """
@@ -44,6 +44,7 @@ DENSITY = 2 / np.sqrt(3) * 1.1
 BOUNDARY_GROWTH = 0.8
 NEAREST_BOUNDARY = 8
 BRUTE_FORCE_NODES = 32
+QUARTERS = np.array([[-1, -1], [1, -1], [-1, 1], [1, 1]], float)
 #: Faces with at least this many boundary nodes get the bound of the sizes gmsh extends from
 #: their boundary; at most this many of their nodes are triangulated for it.
 MANY_NODES = 16
@@ -62,8 +63,9 @@ def planned_nodes(classified: Classified) -> int:
 def check_coarsest(classified: Classified, max_nodes: int, factor: float = 1.0) -> int:
     """The estimated nodes of the coarsest mesh, the one level 0 makes at size ``factor``;
     LimitExceeded when over ``max_nodes``."""
-    estimated = planned_nodes(classified) if factor == 1.0 else estimate_nodes(
-        classified, plan(classified, factor))
+    estimated = planned_nodes(classified)
+    if estimated > max_nodes and factor < 1.0:  # a coarser level 0 has fewer: estimate it
+        estimated = estimate_nodes(classified, plan(classified, factor))
     if estimated > max_nodes:
         raise LimitExceeded(
             f"even the coarsest mesh of this section would need about {estimated} nodes "
@@ -105,27 +107,39 @@ def _ring_nodes(points: np.ndarray, rings: list[list[int]],
     return np.vstack(nodes), np.concatenate(spacing)
 
 
-def _boundary_sizes(nodes: np.ndarray, spacing: np.ndarray, xy: np.ndarray) -> np.ndarray:
+class BoundaryTriangles:
+    """A Delaunay triangulation of a face's boundary nodes with the spacing at each corner,
+    made once per face for ``_boundary_sizes`` (None when the face has few nodes)."""
+
+    def __init__(self, nodes: np.ndarray, spacing: np.ndarray) -> None:
+        step = -(-len(nodes) // MAX_TRIANGULATED)
+        nodes, spacing = nodes[::step], spacing[::step]
+        self.triangles = shapely.get_parts(
+            shapely.delaunay_triangles(shapely.multipoints(nodes)))
+        size_of = {(x, y): h for (x, y), h in zip(map(tuple, nodes.tolist()), spacing,
+                                                  strict=True)}
+        self.corners = shapely.get_coordinates(self.triangles).reshape(-1, 4, 2)[:, :3]
+        self.sizes = np.array([size_of.get(c, 0.0) for c in
+                               map(tuple, self.corners.reshape(-1, 2).tolist())]).reshape(-1, 3)
+        self.tree = shapely.STRtree(self.triangles)
+
+    @classmethod
+    def of(cls, nodes: np.ndarray, spacing: np.ndarray) -> BoundaryTriangles | None:
+        return cls(nodes, spacing) if len(nodes) >= MANY_NODES else None
+
+
+def _boundary_sizes(triangulated: BoundaryTriangles | None, xy: np.ndarray) -> np.ndarray:
     """The boundary spacing interpolated linearly at ``xy`` over a Delaunay triangulation of
     the boundary nodes (0 where there is none: no bound from it there). Faces with few
     boundary nodes keep h(x) alone (their nodes are the junction vertices h(x) grades from);
     many nodes are thinned to MAX_TRIANGULATED, each keeping its own spacing."""
     out = np.zeros(len(xy))
-    if len(nodes) < MANY_NODES:
+    if triangulated is None or not len(triangulated.triangles):
         return out
-    step = -(-len(nodes) // MAX_TRIANGULATED)
-    nodes, spacing = nodes[::step], spacing[::step]
-    triangles = shapely.get_parts(shapely.delaunay_triangles(shapely.multipoints(nodes)))
-    if not len(triangles):
-        return out
-    size_of = {(x, y): h for (x, y), h in zip(map(tuple, nodes.tolist()), spacing, strict=True)}
-    corners = shapely.get_coordinates(triangles).reshape(-1, 4, 2)[:, :3]
-    sizes = np.array([size_of.get(c, 0.0) for c in map(tuple, corners.reshape(-1, 2).tolist())]
-                     ).reshape(-1, 3)
-    sample, triangle = shapely.STRtree(triangles).query(shapely.points(xy),
-                                                        predicate="within")
-    sample, first = np.unique(sample, return_index=True)
-    a, b, c = (corners[triangle[first], k] for k in range(3))
+    corners, sizes = triangulated.corners, triangulated.sizes
+    # the triangles whose boxes hold a sample, then the one its barycentric weights are in
+    sample, triangle = triangulated.tree.query(shapely.points(xy))
+    a, b, c = (corners[triangle, k] for k in range(3))
     p = xy[sample]
     det = (b[:, 0] - a[:, 0]) * (c[:, 1] - a[:, 1]) - (c[:, 0] - a[:, 0]) * (b[:, 1] - a[:, 1])
     with np.errstate(divide="ignore", invalid="ignore"):
@@ -133,8 +147,13 @@ def _boundary_sizes(nodes: np.ndarray, spacing: np.ndarray, xy: np.ndarray) -> n
               (p[:, 1] - a[:, 1])) / det
         wc = ((b[:, 0] - a[:, 0]) * (p[:, 1] - a[:, 1]) - (p[:, 0] - a[:, 0]) *
               (b[:, 1] - a[:, 1])) / det
-    weights = np.column_stack([1 - wb - wc, wb, wc])
-    value = np.einsum("ij,ij->i", weights, sizes[triangle[first]])
+        weights = np.column_stack([1 - wb - wc, wb, wc])
+    # strictly inside (as GEOS's "within"): a sample on an edge between two triangles takes
+    # no bound from them
+    inside = np.flatnonzero(np.all(weights > 1e-12, axis=1) & (det != 0))
+    sample, first = np.unique(sample[inside], return_index=True)
+    rows = inside[first]
+    value = np.einsum("ij,ij->i", weights[rows], sizes[triangle[rows]])
     out[sample] = np.where(np.isfinite(value) & (value > 0), value, 0.0)
     return out
 
@@ -169,9 +188,10 @@ def _face_nodes(polygon: shapely.Polygon, plan: SegmentPlan,
     if not side > 0:
         return 0.0
     nodes, spacing = boundary
-    cells = np.stack(np.meshgrid(_centred(x0, x1, side), _centred(y0, y1, side)),
-                     axis=-1).reshape(-1, 2)
+    (xs, sx), (ys, sy) = _cells(x0, x1, side), _cells(y0, y1, side)
+    cells = np.stack(np.meshgrid(xs, ys), axis=-1).reshape(-1, 2)
     edges = shapely.STRtree(_edges(polygon))
+    triangulated = BoundaryTriangles.of(nodes, spacing)
     shapely.prepare(polygon)
     total = counted = 0.0
     budget = MAX_SAMPLES
@@ -181,32 +201,30 @@ def _face_nodes(polygon: shapely.Polygon, plan: SegmentPlan,
         near = np.zeros(len(cells), bool)
         outside = np.flatnonzero(~inside)
         if len(outside):
-            hit = edges.query(shapely.points(cells[outside]),
-                                               predicate="dwithin", distance=0.71 * side)[0]
+            hit = edges.query(shapely.points(cells[outside]), predicate="dwithin",
+                              distance=0.5 * np.hypot(sx, sy))[0]
             near[outside[np.unique(hit)]] = True
         cells, inside = cells[inside | near], inside[inside | near]
         if not len(cells):
             break
-        h = _sizes(plan, nodes, spacing, cells)
+        h = _sizes(plan, nodes, spacing, triangulated, cells)
         budget -= len(cells)
-        split = side > REFINE * h
+        split = max(sx, sy) > REFINE * h
         if 4 * int(split.sum()) > budget:
             split[:] = False
         done = ~split & inside
-        total += float(np.sum(DENSITY / h[done] ** 2)) * side ** 2
-        counted += int(done.sum()) * side ** 2
-        quarter = side / 4
-        cells = (cells[split][:, None, :] + quarter * np.array(
-            [[-1, -1], [1, -1], [-1, 1], [1, 1]], float)[None]).reshape(-1, 2)
-        side /= 2
+        total += float(np.sum(DENSITY / h[done] ** 2)) * sx * sy
+        counted += int(done.sum()) * sx * sy
+        cells = (cells[split][:, None, :] + QUARTERS[None] * [sx / 4, sy / 4]).reshape(-1, 2)
+        sx, sy = sx / 2, sy / 2
     return total * polygon.area / counted if counted else 0.0
 
 
-def _centred(low: float, high: float, step: float) -> np.ndarray:
-    """Cell centres ``step`` apart covering [low, high], placed symmetrically in it (so that a
-    mirrored section gets the mirrored cells, and the same estimate)."""
+def _cells(low: float, high: float, step: float) -> tuple[np.ndarray, float]:
+    """Centres of cells ``step`` wide covering [low, high], placed symmetrically in it (so
+    that a mirrored section gets the mirrored cells, and the same estimate)."""
     count = max(1, int(np.ceil((high - low) / step)))
-    return 0.5 * (low + high) + step * (np.arange(count) - 0.5 * (count - 1))
+    return 0.5 * (low + high) + step * (np.arange(count) - 0.5 * (count - 1)), step
 
 
 def _edges(polygon: shapely.Polygon) -> np.ndarray:
@@ -216,9 +234,9 @@ def _edges(polygon: shapely.Polygon) -> np.ndarray:
 
 
 def _sizes(plan: SegmentPlan, nodes: np.ndarray, spacing: np.ndarray,
-           xy: np.ndarray) -> np.ndarray:
+           triangulated: BoundaryTriangles | None, xy: np.ndarray) -> np.ndarray:
     h = np.minimum(plan.size_at(xy),
                    _grown_sizes(nodes, spacing, xy, BOUNDARY_GROWTH * plan._growth))
     # where gmsh's sizes interpolated from the boundary are finer still, they govern
-    interpolated = _boundary_sizes(nodes, spacing, xy)
+    interpolated = _boundary_sizes(triangulated, xy)
     return np.where(interpolated > 0, np.minimum(h, interpolated), h)
