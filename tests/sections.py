@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import math
+
 from coldseam.schema import parse_request
 from coldseam.thermal.evaluate import evaluate
 
@@ -83,3 +85,29 @@ def cavity_frame(columns=2, rows=1, cavity=None, solid_lambda=None, pitch=20.0, 
             {"environment": "inside", "surface_resistance": 0.13,
              "path": [[width, 0], [width, height]]}],
     }
+
+
+def wavy_wall(n: int) -> dict:
+    """A 1000 x 3000 mm wall: its exterior face (x ≈ 0) a wave of n vertices exposed along
+    them, its interior face straight and exposed along a path of n points (each one splits
+    the face), a disc of n vertices inside, n/50 small square inserts, a probe per insert."""
+    wave = [[5 * math.sin(k * 0.7), 3000 * k / (n - 1)] for k in range(n)]
+    disc = [[500 + 200 * math.cos(2 * math.pi * k / n), 1500 + 200 * math.sin(2 * math.pi * k / n)]
+            for k in range(n)]
+    inserts = [{"material": "steel", "polygon": [[x, y], [x + 20, y], [x + 20, y + 20],
+                                                 [x, y + 20]]}
+               for i in range(max(1, n // 50)) for x, y in [(100 + 15 * (i % 50),
+                                                             100 + 60 * (i // 50))]]
+    return {"unit": "mm",
+            "materials": [{"id": "wall", "conductivity": 0.5}, {"id": "steel", "conductivity": 50},
+                          {"id": "core", "conductivity": 0.04}],
+            "regions": [{"material": "wall", "polygon": [*wave, [1000, 3000], [1000, 0]]},
+                        {"material": "core", "polygon": disc}, *inserts],
+            "environments": [{"id": "out", "temperature": -5, "side": "exterior"},
+                             {"id": "in", "temperature": 20, "side": "interior"}],
+            "boundaries": [{"environment": "out", "surface_resistance": 0.04, "path": wave},
+                           {"environment": "in", "surface_resistance": 0.13,
+                            "path": [[1000, 3000 * k / (n - 1)] for k in range(n)]}],
+            "probes": [{"id": f"p{i}", "point": [r["polygon"][0][0] + 10,
+                                                  r["polygon"][0][1] + 10]}
+                       for i, r in enumerate(inserts[:100])]}

@@ -8,7 +8,7 @@ __version__ = "0.1.0"
 
 #: Changes whenever a change to the engine can change a number in a result;
 #: part of every evaluation id, so stored results never outlive their engine.
-ENGINE_VERSION = "coldseam-engine-3"
+ENGINE_VERSION = "coldseam-engine-4"
 
 #: The engine the service and ``coldseam evaluate`` run unless ``COLDSEAM_ENGINE`` names another.
 DEFAULT_ENGINE = "coldseam.thermal.evaluate:evaluate"

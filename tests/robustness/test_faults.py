@@ -126,15 +126,16 @@ def test_a_full_queue_answers_429_with_retry_after(client_for):
 def test_a_mesh_over_the_servers_node_limit_is_refused_before_meshing(client_for):
     from test_node_estimate import foil_wall
 
-    with client_for(max_nodes=5000) as client:
+    # level 0 of a 0.05 mm foil has about 600 nodes
+    with client_for(max_nodes=300) as client:
         started = time.monotonic()
         response = client.post("/api/v1/evaluations",
                                json={"section": foil_wall(0.05), "options": {"max_levels": 3}})
         assert response.status_code == 413, response.text
         assert "estimated before meshing" in response.json()["detail"]
-        assert "limit of 5000" in response.json()["detail"]
+        assert "limit of 300" in response.json()["detail"]
         assert time.monotonic() - started < 10
         asked = client.post("/api/v1/evaluations",
                             json=request_of(foil_wall(0.05), max_nodes=10_000))
         assert asked.status_code == 413
-        assert "above this server's limit of 5000" in asked.json()["detail"]
+        assert "above this server's limit of 300" in asked.json()["detail"]

@@ -101,6 +101,8 @@ def test_uploads_past_the_waiting_line_are_429_and_the_server_answers_meanwhile(
         statuses = sorted(f.result().status_code for f in uploads)
     refused = [f.result() for f in uploads if f.result().status_code == 429]
     assert refused and all(r.headers["retry-after"] == "5" for r in refused), statuses
+    # their bodies are not read: the connection is closed so the server stops parsing them
+    assert all(r.headers["connection"] == "close" for r in refused), statuses
     assert "waiting line is full" in refused[0].json()["detail"]
     assert 500 not in statuses
     assert answered < 5, answered

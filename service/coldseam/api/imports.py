@@ -14,7 +14,7 @@ from fastapi.responses import JSONResponse
 
 from coldseam.api.deps import SettingsDep
 from coldseam.api.evaluations import ERRORS
-from coldseam.api.reader import DrawingReader, drawing_reader, dxf_importer
+from coldseam.api.reader import DrawingReader, check_importer, drawing_reader
 from coldseam.errors import InvalidSection
 from coldseam.schema.jsonlimits import load_json
 
@@ -50,7 +50,7 @@ async def import_dxf(
     (``{"section", "warnings", "layers"}``), ready to be completed and evaluated."""
     mapping = parse_layer_map(layer_map)
     data = await file.read()
-    dxf_importer()  # 501 before anything is started when the importer is missing
+    check_importer()  # 501 before anything is started when the importer is missing
     reader = drawing_reader(settings.worker_memory_mb)
     section = await reader.read_async(data, mapping, unit)
     return JSONResponse(section)

@@ -19,7 +19,13 @@ from dataclasses import dataclass, field
 from multiprocessing.connection import Connection
 from typing import Any
 
-from coldseam.api.worker import MEMORY_FIELD, OUT_OF_MEMORY, memory_message, worker_main
+from coldseam.api.worker import (
+    MEMORY_FIELD,
+    OUT_OF_MEMORY,
+    lower_priority,
+    memory_message,
+    worker_main,
+)
 
 log = logging.getLogger(__name__)
 
@@ -87,6 +93,7 @@ class WorkerSlot:
             raise
         finally:
             child_conn.close()
+        lower_priority(process.pid)  # before its imports: the server keeps the CPU it needs
         self.process, self.conn, self.ready = process, parent_conn, False
         log.info("worker %s started (pid %s)", self.name, process.pid)
 

@@ -7,6 +7,7 @@ and its midpoint lie within ``TOLERANCE × extent`` of the path; a later boundar
 
 from __future__ import annotations
 
+import bisect
 from dataclasses import dataclass
 
 import numpy as np
@@ -34,11 +35,12 @@ class Classified:
 def classify(section: Section, partition: Partition) -> Classified:
     tol = TOLERANCE * partition.extent
     paths = [LineString(np.asarray(b.path, float) * section.scale) for b in section.boundaries]
+    index = RingIndex(partition)
     for path in paths + [LineString(np.asarray(line, float) * section.scale)
                          for line in section.symmetry_lines]:
         for x, y in path.coords:
-            _split_at(partition, np.array([x, y]), tol)
-    probe_points, probe_faces = _place_probes(section, partition, tol)
+            _split_at(partition, np.array([x, y]), tol, index)
+    probe_points, probe_faces = _place_probes(section, partition, tol, index)
     segments = partition.segments()
     outline = [s for s, faces in segments.items() if len(faces) == 1]
     exposure = _match_paths(section, partition, outline, paths, tol)
@@ -59,16 +61,34 @@ def _on_lines(partition, segments, lines, tol) -> set[tuple[int, int]]:
     a, c = pts[ends[:, 0]], pts[ends[:, 1]]
     probes = shapely.points(np.concatenate([a, c, 0.5 * (a + c)]))
     on = np.zeros(len(segments), bool)
-    for line in lines:  # one vectorised distance call per line
-        on |= (shapely.distance(line, probes) <= tol).reshape(3, -1).all(axis=0)
+    for line in lines:
+        on |= _near_line(line, probes, tol).reshape(3, -1).all(axis=0)
     return {segments[k] for k in np.flatnonzero(on)}
 
 
-def _split_at(partition: Partition, p: np.ndarray, tol: float) -> int | None:
+def _near_line(line: LineString, points: np.ndarray, tol: float) -> np.ndarray:
+    """distance(line, point) <= tol for each of ``points``, through an STRtree of the line's
+    pieces: the distance to a line is the least distance to one of its pieces, so this is the
+    same test, in time that grows with the points near each piece, not with all pairs."""
+    xy = np.asarray(line.coords)
+    if len(xy) < 3:
+        return shapely.distance(line, points) <= tol
+    pieces = shapely.linestrings(np.stack([xy[:-1], xy[1:]], axis=1))
+    hit = shapely.STRtree(pieces).query(points, predicate="dwithin", distance=tol)[0]
+    out = np.zeros(len(points), bool)
+    out[hit] = True
+    return out
+
+
+def _split_at(partition: Partition, p: np.ndarray, tol: float,
+              index: RingIndex | None = None) -> int | None:
     """Insert point p into every ring segment it lies on (within tol); its index, if on one.
 
-    Vectorised over all segments (numpy), so that a path of many points costs a numpy pass
-    over the outline per point, not a Python loop over every segment."""
+    Without ``index``: vectorised over all segments (numpy), a pass over the outline per
+    point. With one (``classify``, for paths of many points): only the points and segments
+    near p are looked at, with the same tests, so the outcome is the same."""
+    if index is not None:
+        return index.split_at(p, tol)
     pts = partition.points
     near = np.flatnonzero(np.linalg.norm(pts - p, axis=1) <= tol)
     if len(near):
@@ -82,6 +102,145 @@ def _split_at(partition: Partition, p: np.ndarray, tol: float) -> int | None:
         partition.faces[face].rings[ring].insert(k + 1, new_index)
     partition.__dict__.pop("_segment_table", None)  # the rings changed
     return new_index
+
+
+class RingIndex:
+    """The points and ring segments of a partition, indexed for ``_split_at`` while points
+    are inserted (valid only while nothing else changes the rings).
+
+    Points: a k-d tree of those there were at the start or at the last rebuild, and the few
+    added since, looked through in full. Segments: an STRtree of the ring segments there were
+    at the start; each keeps the chain of points it has been split into, with their positions
+    along it, and the index how far inserted points stray from their segments, so that the
+    pieces p may lie on (within tol) are found from the segments within tol plus that reach,
+    and along each from the positions within the same reach of p's. The tests on them are
+    those of ``_segments_through``, so the outcome is the same as looking at every segment."""
+
+    REBUILD = 256  # points added before the k-d tree is rebuilt
+    TREE_POINTS = 512
+
+    def __init__(self, partition: Partition) -> None:
+        self.partition = partition
+        self._tree_points()
+        self.where: list[tuple[int, int]] = []  # per original segment: face, ring
+        self.chain: list[list[int]] = []  # its points from start to end
+        self.along: list[list[float]] = []  # their positions along it (0 to 1)
+        self.ordered: list[bool] = []  # positions increasing along the chain
+        starts, ends = [], []
+        for f, face in enumerate(partition.faces):
+            for r, ring in enumerate(face.rings):
+                for a, b in zip(ring, ring[1:] + ring[:1], strict=True):
+                    self.where.append((f, r))
+                    self.chain.append([a, b])
+                    self.along.append([0.0, 1.0])
+                    self.ordered.append(True)
+                    starts.append(a)
+                    ends.append(b)
+        pts = partition.points
+        self.original = np.column_stack([starts, ends]).reshape(-1, 2)
+        self.tree = shapely.STRtree(shapely.linestrings(
+            np.stack([pts[self.original[:, 0]], pts[self.original[:, 1]]], axis=1))) \
+            if len(starts) else None
+        self.reach = 0.0  # farthest an inserted point lies from its original segment
+
+    def _tree_points(self) -> None:
+        """A k-d tree of the points, once there are TREE_POINTS (fewer are all looked at,
+        which spares a small section the import of scipy.spatial)."""
+        if len(self.partition.points) < self.TREE_POINTS:
+            self.indexed, self.points_tree = 0, None
+            return
+        from scipy.spatial import cKDTree
+
+        self.indexed = len(self.partition.points)
+        self.points_tree = cKDTree(self.partition.points)
+
+    def _near_point(self, p: np.ndarray, tol: float) -> int | None:
+        pts = self.partition.points
+        found = [] if self.points_tree is None else self.points_tree.query_ball_point(
+            p, tol * (1 + 1e-9) + 1e-300)
+        candidates = np.array(sorted(found) + list(range(self.indexed, len(pts))), int)
+        if not len(candidates):
+            return None
+        near = candidates[np.linalg.norm(pts[candidates] - p, axis=1) <= tol]
+        return int(near.min()) if len(near) else None
+
+    def _position(self, original: int, p: np.ndarray) -> tuple[float, float]:
+        """Position of p's projection along an original segment (0 at its start, 1 at its
+        end), and the position change a distance of 1 makes."""
+        pts = self.partition.points
+        a, b = pts[self.original[original, 0]], pts[self.original[original, 1]]
+        d = b - a
+        length2 = float(d @ d)
+        if not length2 > 0:
+            return 0.0, np.inf
+        return float((p - a) @ d) / length2, 1 / np.sqrt(length2)
+
+    def split_at(self, p: np.ndarray, tol: float) -> int | None:
+        near = self._near_point(p, tol)
+        if near is not None:
+            return near
+        hits = self._segments_through(p, tol)
+        if not hits:
+            return None
+        partition = self.partition
+        partition.points = np.vstack([partition.points, p])
+        new_index = len(partition.points) - 1
+        for original, piece, k in hits:
+            f, r = self.where[original]
+            partition.faces[f].rings[r].insert(k + 1, new_index)
+            position = self._position(original, p)[0]
+            along = self.along[original]
+            self.chain[original].insert(piece + 1, new_index)
+            along.insert(piece + 1, position)
+            if not along[piece] <= position <= along[piece + 2]:
+                self.ordered[original] = False
+            stray = float(shapely.distance(shapely.points(p), self.tree.geometries[original]))
+            self.reach = max(self.reach, stray)
+        partition.__dict__.pop("_segment_table", None)  # the rings changed
+        if len(partition.points) - self.indexed > self.REBUILD:
+            self._tree_points()
+        return new_index
+
+    def _pieces_near(self, original: int, p: np.ndarray, reach: float) -> range:
+        """The pieces of an original segment p may lie on: all of them, or (positions in
+        order) those whose ends' positions come within ``reach`` of p's."""
+        along = self.along[original]
+        if not self.ordered[original] or len(along) < 8:
+            return range(len(along) - 1)
+        position, per_length = self._position(original, p)
+        margin = reach * per_length * (1 + 1e-9) + 1e-12
+        low = max(bisect.bisect_left(along, position - margin) - 1, 0)
+        high = min(bisect.bisect_right(along, position + margin), len(along) - 1)
+        return range(low, high)
+
+    def _segments_through(self, p: np.ndarray, tol: float) -> list:
+        """(original, piece, k) of the first piece (ring position k) of each ring that p lies
+        on, inside it: the test of ``_segments_through`` on the pieces near p."""
+        if self.tree is None:
+            return []
+        reach = (tol + self.reach) * (1 + 1e-9) + 1e-300
+        originals = self.tree.query(shapely.points(p), predicate="dwithin", distance=reach)
+        found = [(int(o), i) for o in originals for i in self._pieces_near(int(o), p, reach)]
+        if not found:
+            return []
+        pts = self.partition.points
+        ends = np.array([self.chain[o][i:i + 2] for o, i in found], int)
+        a, b = pts[ends[:, 0]], pts[ends[:, 1]]
+        d = b - a
+        length2 = np.einsum("ij,ij->i", d, d)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            t = np.einsum("ij,ij->i", p - a, d) / length2
+        inside = (t > 0) & (t < 1)
+        foot = a + np.where(inside, t, 0.0)[:, None] * d
+        on = np.flatnonzero(inside & (np.linalg.norm(foot - p, axis=1) <= tol))
+        first: dict[tuple[int, int], tuple[int, int, int]] = {}
+        for row in on:
+            original, piece = found[row]
+            f, r = self.where[original]
+            k = self.partition.faces[f].rings[r].index(int(ends[row, 0]))
+            if (f, r) not in first or k < first[(f, r)][2]:
+                first[(f, r)] = (original, piece, k)
+        return [first[key] for key in sorted(first)]
 
 
 def _segments_through(partition: Partition, p: np.ndarray, tol: float) -> list:
@@ -123,23 +282,24 @@ def _segment_table(partition: Partition) -> tuple[np.ndarray, np.ndarray, np.nda
     return table
 
 
-def _place_probes(section: Section, partition: Partition, tol: float):
+def _place_probes(section: Section, partition: Partition, tol: float,
+                  index: RingIndex | None = None):
     polygons = [shapely.Polygon(partition.points[f.rings[0]],
                                 [partition.points[r] for r in f.rings[1:]])
                 for f in partition.faces]
     probe_points, probe_faces = [], []
     for i, probe in enumerate(section.probes):
         p = np.asarray(probe.point, float) * section.scale
-        index = _split_at(partition, p, tol)
+        point = _split_at(partition, p, tol, index)
         face = None
-        if index is None:
+        if point is None:
             hits = [k for k, poly in enumerate(polygons) if poly.contains(Point(p))]
             if not hits:
                 raise InvalidSection(
                     f"probe '{probe.id}' at {where(section, *p)} lies outside the section",
                     f"/section/probes/{i}/point")
             face = hits[0]
-        probe_points.append(index)
+        probe_points.append(point)
         probe_faces.append(face)
     return probe_points, probe_faces
 
@@ -156,7 +316,7 @@ def _match_paths(section, partition, outline, paths, tol) -> dict[tuple[int, int
             ends = np.asarray(outline)
             a, c = pts[ends[:, 0]], pts[ends[:, 1]]
             probes = shapely.points(np.concatenate([a, c, 0.5 * (a + c)]))
-            near = (shapely.distance(path, probes) <= tol).reshape(3, -1).all(axis=0)
+            near = _near_line(path, probes, tol).reshape(3, -1).all(axis=0)
             for k in np.flatnonzero(near):
                 exposure[outline[k]] = b
             hit = bool(near.any())

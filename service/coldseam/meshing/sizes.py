@@ -32,6 +32,11 @@ NEAREST = 8
 BRUTE_FORCE_VERTICES = 32
 #: Query points per brute-force chunk (chunk × vertices distances in memory at once).
 CHUNK = 4096
+#: Local feature sizes: up to this many point-segment pairs every distance is taken; above
+#: it, only those of the segments an STRtree finds near each point, bounded by the nearest of
+#: the segments of the NEAREST_SEGMENTS nearest midpoints.
+BRUTE_FORCE_PAIRS = 200_000
+NEAREST_SEGMENTS = 16
 
 
 @dataclass
@@ -152,7 +157,18 @@ def _distance_to_segments(xy: np.ndarray, a: np.ndarray, b: np.ndarray) -> np.nd
 
 
 def local_feature_size(points, seg_array, xy, own: np.ndarray) -> np.ndarray:
-    """Distance from each xy to the nearest segment sharing no point with ``own`` (n, 2) ends."""
+    """Distance from each xy to the nearest segment sharing no point with ``own`` (n, 2) ends.
+
+    Few points and segments: every distance. Many: only the segments whose boxes reach within
+    an upper bound of the answer (the nearest non-touching segment among those of the
+    NEAREST_SEGMENTS nearest midpoints), found with an STRtree, so the work grows with the
+    points near each one, not with all of them; the distances are the same numbers."""
+    if len(xy) * len(seg_array) <= BRUTE_FORCE_PAIRS or len(seg_array) <= NEAREST_SEGMENTS:
+        return _local_feature_size_all(points, seg_array, xy, own)
+    return _local_feature_size_indexed(points, seg_array, xy, own)
+
+
+def _local_feature_size_all(points, seg_array, xy, own: np.ndarray) -> np.ndarray:
     out = np.empty(len(xy))
     a, b = points[seg_array[:, 0]], points[seg_array[:, 1]]
     for start in range(0, len(xy), 512):
@@ -165,6 +181,49 @@ def local_feature_size(points, seg_array, xy, own: np.ndarray) -> np.ndarray:
             touches |= (seg_array[None, :, 0] == e) | (seg_array[None, :, 1] == e)
         dist[touches] = np.inf
         out[start:stop] = dist.min(axis=1)
+    return out
+
+
+def _pair_distances(xy, a, b, seg_array, own, row, seg) -> np.ndarray:
+    """Distance of point ``row[k]`` to segment ``seg[k]`` (inf where they touch), in the
+    arithmetic of ``_distance_to_segments``."""
+    p, a, d = xy[row], a[seg], b[seg] - a[seg]
+    t = np.einsum("nk,nk->n", p - a, d) / np.maximum(np.einsum("nk,nk->n", d, d), 1e-300)
+    t = np.clip(t, 0.0, 1.0)
+    dist = np.linalg.norm(p - (a + t[:, None] * d), axis=1)
+    ends = seg_array[seg]
+    for column in range(own.shape[1]):
+        e = own[row, column]
+        dist[(ends[:, 0] == e) | (ends[:, 1] == e)] = np.inf
+    return dist
+
+
+def _local_feature_size_indexed(points, seg_array, xy, own: np.ndarray) -> np.ndarray:
+    import shapely
+    from scipy.spatial import cKDTree
+
+    a, b = points[seg_array[:, 0]], points[seg_array[:, 1]]
+    k = min(NEAREST_SEGMENTS, len(seg_array))
+    _, near = cKDTree(0.5 * (a + b)).query(xy, k=k)
+    near = near.reshape(len(xy), k)
+    row = np.repeat(np.arange(len(xy)), k)
+    bound = np.full(len(xy), np.inf)
+    np.minimum.at(bound, row, _pair_distances(xy, a, b, seg_array, own, row, near.ravel()))
+    out = np.full(len(xy), np.inf)
+    unbounded = ~np.isfinite(bound)
+    if unbounded.any():  # every nearby segment touches: all of them, for these few
+        out[unbounded] = _local_feature_size_all(points, seg_array, xy[unbounded],
+                                                 own[unbounded])
+    tree = shapely.STRtree(shapely.linestrings(np.stack([a, b], axis=1)))
+    rows = np.flatnonzero(~unbounded)
+    for start in range(0, len(rows), 8192):
+        chunk = rows[start:start + 8192]
+        reach = bound[chunk] * (1 + 1e-9) + 1e-300
+        x, y = xy[chunk, 0], xy[chunk, 1]
+        boxes = shapely.box(x - reach, y - reach, x + reach, y + reach)
+        index, seg = tree.query(boxes)  # segments whose boxes meet the point's box
+        np.minimum.at(out, chunk[index],
+                      _pair_distances(xy, a, b, seg_array, own, chunk[index], seg))
     return out
 
 

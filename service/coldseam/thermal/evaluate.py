@@ -27,6 +27,7 @@ from coldseam.thermal.levels import (
     TARGETS,
     LevelFigures,
     compare,
+    first_factor,
     first_level,
     iso_comparison,
     met,
@@ -63,7 +64,9 @@ def evaluate(request: EvaluationRequest, progress: Progress | None = None) -> Ev
     flanking = flanking_values(model)
     pair = results.psi_pair(model)
     report("meshing", 0.05)
-    check_coarsest(model.classified, request.options.max_nodes)
+    # the estimate of the mesh level 0 really makes (its plan is kept for first_level)
+    check_coarsest(model.classified, request.options.max_nodes,
+                   first_factor(model.classified, request.options.accuracy))
     meaning = singular.assess(model)
     levels, solution, warnings, watch = _certify(model, flanking, pair, report, meaning)
     report("post-processing", 0.9)
