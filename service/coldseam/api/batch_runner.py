@@ -16,6 +16,7 @@ import secrets
 import threading
 import time
 from collections import OrderedDict, deque
+from collections.abc import Callable
 from concurrent.futures import Future
 from typing import Any
 
@@ -176,9 +177,10 @@ class BatchRunner:
                                                   "message": exc.message, "field": exc.field})
                 return False
         self.store.mark_item_running(key, position)
+        release = self._release_once()
         try:
             submitted = self.evaluations.submit(owner, parsed, text, f"batch-{key[:8]}",
-                                                evaluation_id)
+                                                evaluation_id, release)
         except QueueFull:
             with self._cond:
                 self._prepared[key, position] = (parsed, evaluation_id)
@@ -186,14 +188,26 @@ class BatchRunner:
         if submitted.id != self.store.item_evaluation_id(key, position):
             self.store.set_item_evaluation(key, position, submitted.id)
         if submitted.done is None:
-            self._finish(key, position, submitted.key, None)
+            self._finish(key, position, submitted.key, None, release)
         else:
             submitted.done.add_done_callback(
-                lambda done: self._finish(key, position, submitted.key, done))
+                lambda done: self._finish(key, position, submitted.key, done, release))
         return False
 
+    def _release_once(self) -> Callable[[], None]:
+        """A release of one in-flight place that acts once: as the worker is done with the
+        item (so the next one is handed over while this outcome is stored), or when the
+        outcome is recorded, whichever comes first."""
+        once = threading.Lock()  # taken by the first call, never given back
+
+        def release() -> None:
+            if once.acquire(blocking=False):
+                self._release()
+
+        return release
+
     def _finish(self, key: str, position: int, evaluation_key: str,
-                done: Future | None) -> None:
+                done: Future | None, release: Callable[[], None]) -> None:
         """Record how an item ended (on a pool thread, or here for a stored result)."""
         try:
             outcome = done.result() if done is not None else None
@@ -201,7 +215,7 @@ class BatchRunner:
         except Exception:  # noqa: BLE001 - the item stays unfinished, reported after restart
             log.exception("batch item %s/%d could not be recorded", key[:12], position)
         finally:
-            self._release()
+            release()
 
     def _record_outcome(self, key: str, position: int, evaluation_key: str,
                         outcome: Any) -> None:

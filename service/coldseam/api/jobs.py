@@ -8,6 +8,7 @@ import logging
 import sqlite3
 import threading
 import time
+from collections.abc import Callable
 from concurrent.futures import Future
 from dataclasses import dataclass, field
 from typing import Any
@@ -68,9 +69,12 @@ class Evaluations:
         self._lock = threading.Lock()
 
     def submit(self, owner: str, request: EvaluationRequest, request_text: str,
-               request_id: str = "", evaluation_id: str | None = None) -> Submitted:
+               request_id: str = "", evaluation_id: str | None = None,
+               on_ran: Callable[[], None] | None = None) -> Submitted:
         """Start evaluating ``request`` unless its result is stored or it is in flight.
-        ``evaluation_id`` is ``request_digest(request)`` where the caller has it already.
+        ``evaluation_id`` is ``request_digest(request)`` where the caller has it already;
+        ``on_ran()`` is called when a local worker is done with it, before its outcome is
+        stored (not at all for a stored result, one in flight already, or on a cluster).
 
         Raises QueueFull when no worker is free and the queue is full.
         """
@@ -88,7 +92,8 @@ class Evaluations:
         self.flush_unstored()  # the store took a write: it may take the failures it could not
         job = Job(key=key, request=request.model_dump(mode="json"), label=request_id,
                   on_start=self._started, on_progress=self._progressed,
-                  on_finish=self._finished)
+                  on_finish=self._finished,
+                  on_ran=None if on_ran is None else (lambda job: on_ran()))
         try:
             self.pool.submit(job)
         except QueueFull:

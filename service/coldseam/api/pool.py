@@ -128,6 +128,11 @@ class WorkerPool:
                               "send it again")
         self._mean_seconds = 0.8 * self._mean_seconds + 0.2 * (time.monotonic() - started)
         self.completed += 1
+        if job.on_ran is not None:
+            try:
+                job.on_ran(job)
+            except Exception:  # noqa: BLE001 - logged; the outcome is still stored
+                log.exception("the end of %s could not be announced", job.label or "a job")
         finisher.submit(_finish, job, outcome)
 
 

@@ -64,6 +64,9 @@ class Job:
     on_finish: Callable[[Job, Outcome], None]
     label: str = ""
     extra: dict[str, Any] = field(default_factory=dict)
+    #: Called as the worker is done with the job, before its outcome is stored (a local
+    #: pool only): the worker is free for the next one from then on.
+    on_ran: Callable[[Job], None] | None = None
 
 
 class WorkerSlot:
