@@ -41,31 +41,49 @@ class ReducedDecay:
     jumps: np.ndarray  # (m, N): modal amplitudes of the jump W ΔT' per unit ΔT' of each env
 
 
-def krylov_blocks(k_ff, c_ff, solves, start: np.ndarray, blocks: int) -> np.ndarray:
+class KrylovSpace:
     """A K-orthonormal basis of the constant field and the rational Krylov spaces
     span{W, A_σ W, …, A_σ^(blocks−1) W} with A_σ = (K + σC)⁻¹ C, one for each solver of
     K + σC in ``solves`` (F, m). σ = 0 resolves the slow modes (long runs), σ = 1/Δt the
-    response within a step: together they need few vectors for both."""
-    basis = _orthonormal(k_ff, np.ones((start.shape[0], 1)), np.zeros((start.shape[0], 0)))
-    block = _orthonormal(k_ff, start, basis)
-    basis = np.hstack([basis, block])
-    last = [block for _ in solves]
-    for _ in range(blocks - 1):
-        for k, solve in enumerate(solves):
-            if last[k].shape[1] == 0:
-                continue  # an invariant subspace for this shift
-            last[k] = _orthonormal(k_ff, solve(c_ff @ last[k]), basis)
-            basis = np.hstack([basis, last[k]])
-        if all(b.shape[1] == 0 for b in last):
-            break
-    return basis
+    response within a step: together they need few vectors for both.
+
+    ``grow(blocks)`` extends the basis it has (K V kept beside V), so a caller that checks its
+    outputs every few blocks pays for each block once."""
+
+    def __init__(self, k_ff, c_ff, solves, start: np.ndarray) -> None:
+        self.k_ff, self.c_ff, self.solves = k_ff, c_ff, solves
+        rows = start.shape[0]
+        self.basis, self.k_basis = np.zeros((rows, 0)), np.zeros((rows, 0))
+        self._add(np.ones((rows, 1)))
+        first = self._add(start)
+        self.last = [first for _ in solves]
+        self.blocks = 1
+
+    def grow(self, blocks: int) -> np.ndarray:
+        """The basis with ``blocks`` blocks per shift (fewer where a space is invariant)."""
+        while self.blocks < blocks:
+            self.blocks += 1
+            for k, solve in enumerate(self.solves):
+                if self.last[k].shape[1] == 0:
+                    continue  # an invariant subspace for this shift
+                self.last[k] = self._add(solve(self.c_ff @ self.last[k]))
+            if all(b.shape[1] == 0 for b in self.last):
+                break
+        return self.basis
+
+    def _add(self, vectors: np.ndarray) -> np.ndarray:
+        block = _orthonormal(self.k_ff, vectors, self.basis, self.k_basis)
+        self.basis = np.hstack([self.basis, block])
+        self.k_basis = np.hstack([self.k_basis, self.k_ff @ block])
+        return block
 
 
-def _orthonormal(k_ff, vectors: np.ndarray, basis: np.ndarray) -> np.ndarray:
-    """Columns of ``vectors`` made K-orthonormal to ``basis`` and to each other (classical
-    Gram–Schmidt twice); columns that are (nearly) in the span already are dropped."""
+def _orthonormal(k_ff, vectors: np.ndarray, basis: np.ndarray,
+                 k_basis: np.ndarray) -> np.ndarray:
+    """Columns of ``vectors`` made K-orthonormal to ``basis`` (``k_basis`` = K basis) and to
+    each other (classical Gram–Schmidt twice); columns that are (nearly) in the span already
+    are dropped."""
     kept = []
-    k_basis = k_ff @ basis if basis.shape[1] else basis
     for column in vectors.T:
         v = column.copy()
         size = np.sqrt(max(v @ (k_ff @ v), 0.0))

@@ -103,8 +103,9 @@ class TransientRun:
         p, dyn = self.dyn.problem, self.dyn
         start = self.w[p.free][:, self.driven]
         blocks, previous = transient.BLOCKS_PER_CHECK, None
+        space = transient.KrylovSpace(dyn.k_ff, dyn.c_ff, self._solves(), start)
         while True:
-            basis = transient.krylov_blocks(dyn.k_ff, dyn.c_ff, self._solves(), start, blocks)
+            basis = space.grow(blocks)
             values = self._values(basis)
             if previous is not None and self._settled(previous, values):
                 break
