@@ -225,14 +225,7 @@ class RingIndex:
             return []
         pts = self.partition.points
         ends = np.array([self.chain[o][i:i + 2] for o, i in found], int)
-        a, b = pts[ends[:, 0]], pts[ends[:, 1]]
-        d = b - a
-        length2 = np.einsum("ij,ij->i", d, d)
-        with np.errstate(divide="ignore", invalid="ignore"):
-            t = np.einsum("ij,ij->i", p - a, d) / length2
-        inside = (t > 0) & (t < 1)
-        foot = a + np.where(inside, t, 0.0)[:, None] * d
-        on = np.flatnonzero(inside & (np.linalg.norm(foot - p, axis=1) <= tol))
+        on = _within_segments(p, pts[ends[:, 0]], pts[ends[:, 1]], tol)
         first: dict[tuple[int, int], tuple[int, int, int]] = {}
         for row in on:
             original, piece = found[row]
@@ -243,18 +236,24 @@ class RingIndex:
         return [first[key] for key in sorted(first)]
 
 
-def _segments_through(partition: Partition, p: np.ndarray, tol: float) -> list:
-    """(face, ring, k) of the first segment k of each ring that p lies on, inside it."""
-    ids, a, b = _segment_table(partition)
-    if not len(ids):
-        return []
+def _within_segments(p: np.ndarray, a: np.ndarray, b: np.ndarray, tol: float) -> np.ndarray:
+    """Rows of the segments a→b (S, 2) that p lies on within ``tol``, strictly between the
+    ends."""
     d = b - a
     length2 = np.einsum("ij,ij->i", d, d)
     with np.errstate(divide="ignore", invalid="ignore"):
         t = np.einsum("ij,ij->i", p - a, d) / length2
     inside = (t > 0) & (t < 1)
     foot = a + np.where(inside, t, 0.0)[:, None] * d
-    on = np.flatnonzero(inside & (np.linalg.norm(foot - p, axis=1) <= tol))
+    return np.flatnonzero(inside & (np.linalg.norm(foot - p, axis=1) <= tol))
+
+
+def _segments_through(partition: Partition, p: np.ndarray, tol: float) -> list:
+    """(face, ring, k) of the first segment k of each ring that p lies on, inside it."""
+    ids, a, b = _segment_table(partition)
+    if not len(ids):
+        return []
+    on = _within_segments(p, a, b, tol)
     first: dict[tuple[int, int], int] = {}
     for row in on:
         face, ring, k = (int(v) for v in ids[row])
