@@ -9,6 +9,7 @@ import os
 import subprocess
 import sys
 from concurrent.futures import ThreadPoolExecutor
+from contextlib import contextmanager
 
 import pytest
 from fastapi import HTTPException
@@ -30,30 +31,32 @@ def own_niceness(data, mapping, unit) -> int:
     return os.getpriority(os.PRIO_PROCESS, 0)
 
 
-def test_evaluation_workers_run_nicer_than_the_server():
-    expected = _expected()
+@contextmanager
+def started_slot():
+    """A worker slot of the real engine, started, stopped afterwards."""
     slot = WorkerSlot(multiprocessing.get_context("spawn"),
                       "coldseam.thermal.evaluate:evaluate", "coldseam-worker-nice")
     slot.start()
     try:
-        assert os.getpriority(os.PRIO_PROCESS, slot.process.pid) == expected
+        yield slot
     finally:
         slot.stop()
 
 
+def test_evaluation_workers_run_nicer_than_the_server():
+    expected = _expected()
+    with started_slot() as slot:
+        assert os.getpriority(os.PRIO_PROCESS, slot.process.pid) == expected
+
+
 def test_a_replaced_worker_runs_nicer_too():
     expected = _expected()
-    slot = WorkerSlot(multiprocessing.get_context("spawn"),
-                      "coldseam.thermal.evaluate:evaluate", "coldseam-worker-nice")
-    slot.start()
-    try:
+    with started_slot() as slot:
         first = slot.process.pid
         slot.kill()
         slot.start()
         assert slot.process.pid != first
         assert os.getpriority(os.PRIO_PROCESS, slot.process.pid) == expected
-    finally:
-        slot.stop()
 
 
 def test_the_drawing_reader_runs_nicer_than_the_server():
